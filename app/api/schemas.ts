@@ -1,0 +1,157 @@
+// Input shapes of the LabApi, validated with zod. Shapes only: meaning that needs the lab's
+// records (units against a meter's band, known meters and standards, dates against the
+// clock) is checked in service.ts, and reported in the same LabError form.
+import { z } from 'zod';
+
+const isoDate = z.iso.date('expected a date as YYYY-MM-DD');
+const nonEmpty = (what: string) => z.string(`expected ${what}`).trim().min(1, `expected ${what}, not empty`);
+const finite = (what: string) => z.number(`expected ${what} as a number`).refine(Number.isFinite, `expected ${what} as a finite number`);
+
+/** A frequency as typed: '9.3 GHz', '9300MHz', '9.3e9 Hz', or a number in Hz. Parsed in the service. */
+export const FrequencyText = z.union([z.string(), z.number()], 'expected a frequency such as "9.3 GHz"');
+
+export const DecisionRuleSchema = z.discriminatedUnion(
+  'kind',
+  [
+    z.object({ kind: z.literal('simple') }),
+    z.object({ kind: z.literal('guarded'), multipleOfU: finite('multiple of U').pipe(z.number().min(0).max(3)) }),
+    z.object({ kind: z.literal('guarded-fixed'), guardBandPpm: finite('guard band in ppm').pipe(z.number().min(0)) }),
+    z.object({ kind: z.literal('non-binary') }),
+  ],
+  'expected a decision rule: simple, guarded, guarded-fixed or non-binary',
+);
+
+export const LabSettingsSchema = z.object({
+  name: nonEmpty('the lab name'),
+  address: z.string().default(''),
+  accreditation: z.string().default(''),
+  decisionRule: DecisionRuleSchema.default({ kind: 'guarded', multipleOfU: 1 }),
+  reliabilityTarget: finite('reliability target').pipe(z.number().gt(0.5).lt(1)).default(0.95),
+  intervalMinMonths: z.int('expected whole months').min(1).max(120).default(6),
+  intervalMaxMonths: z.int('expected whole months').min(1).max(240).default(60),
+  defaultTemperatureUncertaintyC: finite('temperature uncertainty').pipe(z.number().min(0).max(10)).default(0.3),
+  defaultPressureUncertaintyHpa: finite('pressure uncertainty').pipe(z.number().min(0).max(50)).default(1),
+  defaultHumidityUncertaintyPct: finite('humidity uncertainty').pipe(z.number().min(0).max(50)).default(5),
+  printSuggestedInterval: z.boolean().default(false),
+});
+export type LabSettingsInput = z.input<typeof LabSettingsSchema>;
+
+const ChartPointSchema = z.object({
+  divisions: finite('dial divisions'),
+  frequency: FrequencyText,
+});
+
+export const MeterSchema = z.object({
+  assetId: nonEmpty('an asset id').pipe(z.string().max(40)),
+  description: z.string().default(''),
+  construction: z.enum(['coaxial', 'waveguide'], 'expected "coaxial" or "waveguide"'),
+  port: z.string().default(''),
+  min: FrequencyText,
+  max: FrequencyText,
+  dialKind: z.enum(['direct', 'divisions'], 'expected "direct" or "divisions"'),
+  accuracyRelPpm: finite('relative accuracy in ppm').pipe(z.number().gt(0).max(100000)),
+  accuracyAbs: FrequencyText.default('0 Hz'),
+  /** Dial resolution: a frequency for direct-reading meters, a number of divisions otherwise. */
+  resolution: z.union([z.string(), z.number()]),
+  chart: z.array(ChartPointSchema).default([]),
+  alphaPerK: finite('expansion coefficient in 1/K').pipe(z.number().min(-1e-4).max(1e-4)),
+  alphaUncertaintyPerK: finite('uncertainty of the expansion coefficient').pipe(z.number().min(0)).default(1e-6),
+  reference: z
+    .object({
+      temperatureC: finite('reference temperature').pipe(z.number().min(-20).max(60)),
+      pressureHpa: finite('reference pressure').pipe(z.number().min(500).max(1100)),
+      humidityPct: finite('reference humidity').pipe(z.number().min(0).max(100)),
+    })
+    .default({ temperatureC: 20, pressureHpa: 1013.25, humidityPct: 50 }),
+  loadedQ: finite('loaded Q').pipe(z.number().min(10).max(1e6)).default(1500),
+  settingFraction: finite('setting fraction').pipe(z.number().min(0).max(1)).default(0.05),
+  minDipDb: finite('minimum dip depth in dB').pipe(z.number().min(0)).default(1),
+  maxInputPowerW: finite('maximum input power in W').pipe(z.number().gt(0)).default(1),
+  location: z.string().default(''),
+  state: z.enum(['in-service', 'quarantined', 'withdrawn']).default('in-service'),
+  intervalMonths: z.int('expected whole months').min(1).max(240).default(12),
+  plan: z.array(FrequencyText).default([]),
+});
+export type MeterInput = z.input<typeof MeterSchema>;
+
+export const StandardCertificateSchema = z.object({
+  certificateId: nonEmpty('the certificate number'),
+  issuedBy: nonEmpty('the issuing body'),
+  calibratedOn: isoDate,
+  dueOn: isoDate,
+  /** Relative expanded uncertainty of the source's frequency, from its certificate. */
+  expandedUncertaintyPpm: finite('expanded uncertainty in ppm').pipe(z.number().gt(0).max(1000)),
+  coverageFactor: finite('coverage factor').pipe(z.number().min(1).max(10)).default(2),
+});
+
+export const StandardSchema = z.object({
+  assetId: nonEmpty('an asset id').pipe(z.string().max(40)),
+  description: z.string().default(''),
+  /** Its calibration history, any order; each check uses the one valid on the check date. */
+  certificates: z.array(StandardCertificateSchema).min(1, 'expected at least one certificate'),
+});
+export type StandardInput = z.input<typeof StandardSchema>;
+
+export const PersonSchema = z.object({
+  name: nonEmpty('a name').pipe(z.string().max(80)),
+  role: z.enum(['technician', 'reviewer', 'administrator'], 'expected technician, reviewer or administrator'),
+});
+export type PersonInput = z.input<typeof PersonSchema>;
+
+export const ReadingSchema = z.object({
+  /** A frequency with unit (direct-reading meters) or divisions (number, or text ending in "div"). */
+  value: z.union([z.string(), z.number()], 'expected a reading'),
+  direction: z.enum(['up', 'down'], 'expected "up" or "down" (direction of approach)'),
+});
+
+export const ConditionsSchema = z.object({
+  temperatureC: finite('temperature in degC').pipe(z.number().min(0, 'expected 0 to 50 degC').max(50, 'expected 0 to 50 degC')),
+  temperatureUncertaintyC: finite('temperature uncertainty').pipe(z.number().min(0).max(10)).optional(),
+  pressureHpa: finite('pressure in hPa').pipe(z.number().min(500, 'expected 500 to 1100 hPa').max(1100, 'expected 500 to 1100 hPa')),
+  pressureUncertaintyHpa: finite('pressure uncertainty').pipe(z.number().min(0).max(50)).optional(),
+  humidityPct: finite('relative humidity in %').pipe(z.number().min(0, 'expected 0 to 100 %').max(100, 'expected 0 to 100 %')),
+  humidityUncertaintyPct: finite('humidity uncertainty').pipe(z.number().min(0).max(50)).optional(),
+});
+
+export const CheckPointSchema = z.object({
+  phase: z.enum(['as-found', 'as-left'], 'expected "as-found" or "as-left"').default('as-found'),
+  reference: FrequencyText,
+  /** Asset id of the lab standard that supplied the reference; defaults to the first listed. */
+  standard: z.string().optional(),
+  readings: z.array(ReadingSchema).min(2, 'expected at least two readings per point'),
+});
+
+/** The exchange document: one check of one meter (format "dipledger.check/1"). */
+export const CheckDocumentSchema = z.object({
+  format: z.literal('dipledger.check/1', 'expected format "dipledger.check/1"'),
+  meter: nonEmpty('the meter asset id'),
+  date: isoDate,
+  performer: nonEmpty("the performer's name"),
+  standards: z.array(nonEmpty('a lab standard asset id')).min(1, 'expected at least one lab standard'),
+  method: z.enum(['tune-to-dip', 'sweep']).default('tune-to-dip'),
+  conditions: ConditionsSchema,
+  adjusted: z.boolean().default(false),
+  remarks: z.string().default(''),
+  points: z.array(CheckPointSchema).min(1, 'expected at least one point'),
+});
+export type CheckDocumentInput = z.input<typeof CheckDocumentSchema>;
+export type CheckDocument = z.output<typeof CheckDocumentSchema>;
+
+/** One point judged on its own: a meter (from the lab, or its spec inline), conditions, readings. */
+export const BudgetDocumentSchema = z.object({
+  format: z.literal('dipledger.budget/1', 'expected format "dipledger.budget/1"'),
+  meter: nonEmpty('the meter asset id'),
+  standard: nonEmpty('a lab standard asset id'),
+  conditions: ConditionsSchema,
+  reference: FrequencyText,
+  readings: z.array(ReadingSchema).min(2, 'expected at least two readings'),
+  decisionRule: DecisionRuleSchema.optional(),
+});
+export type BudgetDocumentInput = z.input<typeof BudgetDocumentSchema>;
+
+export const AirSchema = z.object({
+  temperatureC: finite('temperature in degC').pipe(z.number().min(-40).max(60)),
+  humidityPct: finite('relative humidity in %').pipe(z.number().min(0).max(100)),
+  pressureHpa: finite('pressure in hPa').pipe(z.number().min(300).max(1100)),
+});
+export type AirInput = z.input<typeof AirSchema>;

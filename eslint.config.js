@@ -1,0 +1,42 @@
+// Lint at zero warnings. The engine is a leaf: it may import only itself and pure libraries.
+import js from '@eslint/js';
+import tseslint from 'typescript-eslint';
+
+export default tseslint.config(
+  { ignores: ['node_modules/**', 'renderer/dist/**', 'bin/**', 'app/desktop/*.cjs', 'test-output/**'] },
+  js.configs.recommended,
+  ...tseslint.configs.recommendedTypeChecked,
+  {
+    languageOptions: {
+      parserOptions: { projectService: true, tsconfigRootDir: import.meta.dirname },
+    },
+    rules: {
+      '@typescript-eslint/consistent-type-imports': 'error',
+      '@typescript-eslint/no-floating-promises': 'error',
+      '@typescript-eslint/no-unused-vars': ['error', { argsIgnorePattern: '^_' }],
+      '@typescript-eslint/restrict-template-expressions': ['error', { allowNumber: true }],
+    },
+  },
+  {
+    files: ['app/engine/**/*.ts'],
+    rules: {
+      'no-restricted-imports': [
+        'error',
+        {
+          patterns: [
+            { group: ['../*', '!./*'], message: 'app/engine must be independent: import only from app/engine itself.' },
+            { group: ['node:*', 'fs', 'path', 'os', 'child_process', 'crypto', 'http', 'net'], message: 'app/engine is pure: no I/O.' },
+            { group: ['electron', 'better-sqlite3', 'react', 'react-dom', 'pdfkit'], message: 'app/engine is pure: no platform libraries.' },
+          ],
+        },
+      ],
+      'no-restricted-globals': [
+        'error',
+        { name: 'Date', message: 'app/engine has no clock: take dates as inputs.' },
+        { name: 'fetch', message: 'app/engine is pure: no I/O.' },
+        { name: 'process', message: 'app/engine is pure: no process access.' },
+      ],
+      'no-restricted-properties': ['error', { object: 'Math', property: 'random', message: 'app/engine is deterministic.' }],
+    },
+  },
+);

@@ -1,0 +1,11 @@
+import { defineConfig } from 'vitest/config';
+
+export default defineConfig({
+  test: {
+    include: ['test/**/*.test.ts', 'test/**/*.test.tsx'],
+    exclude: ['test/bench/**', 'node_modules/**'],
+    testTimeout: 30000,
+    hookTimeout: 60000,
+    pool: 'forks',
+  },
+});
