@@ -115,6 +115,7 @@ export interface CheckPointRecord {
   referenceHz: number;
   standardAssetId: string;
   readings: Reading[];
+  dipDepthDb: number | null;
   result: PointResult;
 }
 

@@ -119,6 +119,8 @@ export const CheckPointSchema = z.object({
   /** Asset id of the lab standard that supplied the reference; defaults to the first listed. */
   standard: z.string().optional(),
   readings: z.array(ReadingSchema).min(2, 'expected at least two readings per point'),
+  /** Depth of the dip seen on the detector at this point, dB (health of the cavity). */
+  dipDepthDb: finite('dip depth in dB').pipe(z.number().min(0).max(60)).optional(),
 });
 
 /** The exchange document: one check of one meter (format "dipledger.check/1"). */

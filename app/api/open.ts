@@ -1,0 +1,15 @@
+// Opens a lab file and gives its LabApi; the one place shells get a service from.
+import { openLabDb, type OpenOptions } from '../../db/store';
+import type { LabApi } from './contract';
+import { createLabService, type Clock } from './service';
+
+export interface OpenedLab {
+  api: LabApi;
+  close(): void;
+}
+
+export function openApi(file: string, options: OpenOptions & { clock?: Clock; actor?: string } = {}): OpenedLab {
+  const db = openLabDb(file, options);
+  const api = createLabService(db, { clock: options.clock, actor: options.actor });
+  return { api, close: () => db.close() };
+}

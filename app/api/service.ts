@@ -1,0 +1,827 @@
+// The LabApi implemented over a lab file. Validates every input (shape with zod, meaning
+// against the records), computes with the engine, and writes each operation in one
+// transaction: a refusal writes nothing.
+import { addMonths, differenceInCalendarDays, formatISO, parseISO } from 'date-fns';
+import { parse as parseCsv } from 'csv-parse/sync';
+import { stringify as stringifyCsv } from 'csv-stringify/sync';
+import type { z } from 'zod';
+import {
+  ENGINE_VERSION,
+  checkInBand,
+  evaluatePoint,
+  parseDivisions,
+  parseFrequencyHz,
+  refractivityN,
+  waterVapourPressureHpa,
+} from '../engine';
+import type { Conditions, DecisionRule, MeterSpec, PointResult, Reading, Verdict } from '../engine/model';
+import type { LabDb } from '../../db/store';
+import { getLab, putLab } from '../../db/queries/lab';
+import { findPersonByName, insertPerson, listPeople } from '../../db/queries/people';
+import { getStandardByAsset, insertStandard, listStandards, type StandardRecord } from '../../db/queries/standards';
+import { getMeterByAsset, insertMeter, registerRows, type MeterRecord } from '../../db/queries/meters';
+import { allCheckIds, findCheckId, getCheck, insertCheck, listCheckSummaries } from '../../db/queries/checks';
+import { appendAudit } from '../../db/queries/audit';
+import type {
+  AirResult,
+  ImportResult,
+  LabApi,
+  LabSettings,
+  Meter,
+  MeterDetail,
+  Person,
+  RegisterRow,
+  Standard,
+} from './contract';
+import { LabError, describe, fromZod, type FieldIssue } from './errors';
+import {
+  AirSchema,
+  BudgetDocumentSchema,
+  CheckDocumentSchema,
+  LabSettingsSchema,
+  MeterSchema,
+  PersonSchema,
+  StandardSchema,
+  type CheckDocument,
+} from './schemas';
+
+/** The service's only source of time, injected so tests run on a fixed clock. */
+export interface Clock {
+  /** Today's date in the lab, YYYY-MM-DD. */
+  today(): string;
+  /** Now, ISO 8601 with time zone. */
+  now(): string;
+}
+
+export const systemClock: Clock = {
+  today: () => formatISO(new Date(), { representation: 'date' }),
+  now: () => new Date().toISOString(),
+};
+
+export function fixedClock(isoDateTime: string): Clock {
+  return { today: () => isoDateTime.slice(0, 10), now: () => isoDateTime };
+}
+
+const VERDICT_ORDER: Verdict[] = ['pass', 'conditional-pass', 'conditional-fail', 'fail'];
+
+export function worstVerdict(verdicts: Verdict[]): Verdict | null {
+  let worst = -1;
+  for (const v of verdicts) worst = Math.max(worst, VERDICT_ORDER.indexOf(v));
+  return worst < 0 ? null : (VERDICT_ORDER[worst] ?? null);
+}
+
+export function addMonthsIso(date: string, months: number): string {
+  return formatISO(addMonths(parseISO(date), months), { representation: 'date' });
+}
+
+export function daysBetween(fromIso: string, toIso: string): number {
+  return differenceInCalendarDays(parseISO(toIso), parseISO(fromIso));
+}
+
+function parseWith<S extends z.ZodType>(schema: S, input: unknown, prefix = ''): z.output<S> {
+  const result = schema.safeParse(input, { reportInput: true });
+  if (!result.success) throw fromZod(result.error, input, prefix);
+  return result.data;
+}
+
+function specOf(m: Meter): MeterSpec {
+  return {
+    minHz: m.minHz,
+    maxHz: m.maxHz,
+    dialKind: m.dialKind,
+    accuracyRelPpm: m.accuracyRelPpm,
+    accuracyAbsHz: m.accuracyAbsHz,
+    resolution: m.resolution,
+    chart: m.dialKind === 'divisions' ? m.chart : undefined,
+    alphaPerK: m.alphaPerK,
+    alphaUncertaintyPerK: m.alphaUncertaintyPerK,
+    reference: m.reference,
+    loadedQ: m.loadedQ,
+    settingFraction: m.settingFraction,
+  };
+}
+
+/** Collects field issues so one refusal can name every problem of a document at once. */
+class Issues {
+  readonly list: FieldIssue[] = [];
+  add(field: string, value: unknown, expected: string, message?: string): void {
+    this.list.push({ field, value, expected, message: message ?? `${field}: ${describe(value)}: ${expected}` });
+  }
+  fromParse(field: string, value: unknown, message: string, expected: string): void {
+    this.list.push({ field, value, expected, message });
+  }
+  throwIfAny(): void {
+    if (this.list.length > 0) throw LabError.invalid(this.list);
+  }
+}
+
+function frequencyOrIssue(issues: Issues, input: string | number, field: string): number | undefined {
+  const r = parseFrequencyHz(input, field);
+  if (r.ok) return r.hz;
+  issues.fromParse(field, input, r.message, 'a frequency with its unit, such as "9.3 GHz"');
+  return undefined;
+}
+
+interface PreparedPoint {
+  phase: 'as-found' | 'as-left';
+  referenceHz: number;
+  standard: StandardRecord;
+  certificate: StandardRecord['certificates'][number];
+  readings: Reading[];
+  dipDepthDb: number | null;
+  result: PointResult;
+}
+
+interface PreparedCheck {
+  doc: CheckDocument;
+  meter: MeterRecord;
+  performer: Person | undefined;
+  conditions: Conditions;
+  standards: { record: StandardRecord; certificate: StandardRecord['certificates'][number] }[];
+  points: PreparedPoint[];
+  asFoundVerdict: Verdict | null;
+  asLeftVerdict: Verdict | null;
+  worstUsedFraction: number | null;
+}
+
+export interface ServiceOptions {
+  clock?: Clock;
+  /** Who the operations are recorded as in the audit trail until people sign in (records issue). */
+  actor?: string;
+}
+
+export function createLabService(db: LabDb, options: ServiceOptions = {}): LabApi {
+  const clock = options.clock ?? systemClock;
+  const actor = options.actor ?? 'local user';
+
+  function lab(): LabSettings {
+    const settings = getLab(db);
+    if (!settings) throw new LabError('refused', 'this lab file has no lab settings yet: run "dipledger init"');
+    return settings;
+  }
+
+  function meterOr404(assetId: string): MeterRecord {
+    const m = getMeterByAsset(db, assetId);
+    if (!m) throw new LabError('not-found', `no meter with asset id ${describe(assetId)} in this lab`, []);
+    return m;
+  }
+
+  function registerRow(r: ReturnType<typeof registerRows>[number]): RegisterRow {
+    const dueDate = r.lastCheckDate ? addMonthsIso(r.lastCheckDate, r.intervalMonths) : null;
+    return { ...r, dueDate, daysToDue: dueDate ? daysBetween(clock.today(), dueDate) : null };
+  }
+
+  function certificateOn(s: StandardRecord, date: string): StandardRecord['certificates'][number] | undefined {
+    return s.certificates.find((c) => c.calibratedOn <= date && date <= c.dueOn);
+  }
+
+  function toStandard(s: StandardRecord): Standard {
+    const newest = s.certificates[0];
+    const dueOn = newest?.dueOn ?? '';
+    return {
+      assetId: s.assetId,
+      description: s.description,
+      certificates: s.certificates.map(({ id: _id, ...c }) => c),
+      dueOn,
+      daysToDue: dueOn ? daysBetween(clock.today(), dueOn) : 0,
+    };
+  }
+
+  /** Parses one reading in dial units: Hz for direct-reading meters, divisions otherwise. */
+  function readingValue(issues: Issues, meter: Meter, value: string | number, field: string): number | undefined {
+    if (meter.dialKind === 'direct') {
+      const hz = frequencyOrIssue(issues, value, field);
+      if (hz === undefined) return undefined;
+      // A meter read at its band edge may show its own error: allow twice the stated accuracy.
+      const slack = 2 * (meter.accuracyRelPpm * 1e-6);
+      const out = checkInBand(hz, meter.minHz * (1 - slack), meter.maxHz * (1 + slack), field);
+      if (out) {
+        issues.fromParse(field, value, out, `a reading inside the band of ${meter.assetId}`);
+        return undefined;
+      }
+      return hz;
+    }
+    const d = parseDivisions(value, field);
+    if (!d.ok) {
+      issues.fromParse(field, value, d.message, 'a dial reading in divisions, such as 12.345');
+      return undefined;
+    }
+    const first = meter.chart[0];
+    const last = meter.chart[meter.chart.length - 1];
+    if (first && last) {
+      const lo = Math.min(first.divisions, last.divisions);
+      const hi = Math.max(first.divisions, last.divisions);
+      if (d.divisions < lo || d.divisions > hi) {
+        issues.fromParse(
+          field,
+          value,
+          `${field}: ${describe(value)} divisions is outside the chart of ${meter.assetId} (${lo} to ${hi} div)`,
+          `a reading from ${lo} to ${hi} divisions`,
+        );
+        return undefined;
+      }
+    }
+    return d.divisions;
+  }
+
+  function conditionsOf(doc: { conditions: CheckDocument['conditions'] }, settings: LabSettings): Conditions {
+    const c = doc.conditions;
+    return {
+      temperatureC: c.temperatureC,
+      temperatureUncertaintyC: c.temperatureUncertaintyC ?? settings.defaultTemperatureUncertaintyC,
+      pressureHpa: c.pressureHpa,
+      pressureUncertaintyHpa: c.pressureUncertaintyHpa ?? settings.defaultPressureUncertaintyHpa,
+      humidityPct: c.humidityPct,
+      humidityUncertaintyPct: c.humidityUncertaintyPct ?? settings.defaultHumidityUncertaintyPct,
+    };
+  }
+
+  function evaluateOrIssue(
+    issues: Issues,
+    field: string,
+    meter: Meter,
+    conditions: Conditions,
+    referenceHz: number,
+    certificate: StandardRecord['certificates'][number],
+    readings: Reading[],
+    rule: DecisionRule,
+  ): PointResult | undefined {
+    try {
+      return evaluatePoint(
+        specOf(meter),
+        conditions,
+        {
+          reference: {
+            frequencyHz: referenceHz,
+            expandedUncertaintyPpm: certificate.expandedUncertaintyPpm,
+            coverageFactor: certificate.coverageFactor,
+          },
+          readings,
+        },
+        rule,
+      );
+    } catch (e) {
+      issues.fromParse(field, undefined, `${field}: ${e instanceof Error ? e.message : String(e)}`, 'readings that can be judged');
+      return undefined;
+    }
+  }
+
+  /** Validates a check document against the records and computes every point. Writes nothing. */
+  function prepareCheck(input: unknown, prefix: string, options: { createPerformer: boolean }): PreparedCheck {
+    const doc = parseWith(CheckDocumentSchema, input, prefix);
+    const settings = lab();
+    const issues = new Issues();
+    const f = (name: string) => (prefix ? `${prefix}.${name}` : name);
+
+    const meter = getMeterByAsset(db, doc.meter);
+    if (!meter) {
+      issues.add(f('meter'), doc.meter, 'the asset id of a meter in this lab', `${f('meter')}: no meter ${describe(doc.meter)} in this lab`);
+      issues.throwIfAny();
+      throw new Error('unreachable');
+    }
+    if (meter.meter.state === 'withdrawn') {
+      issues.add(f('meter'), doc.meter, 'a meter that is not withdrawn', `${f('meter')}: ${doc.meter} is withdrawn; return it to service first`);
+    }
+    const today = clock.today();
+    if (doc.date > today) {
+      issues.add(f('date'), doc.date, `a date on or before today (${today})`, `${f('date')}: ${doc.date} is in the future (today is ${today})`);
+    }
+    const performer = findPersonByName(db, doc.performer);
+    if (!performer && !options.createPerformer) {
+      const known = listPeople(db).map((p) => p.name);
+      issues.add(
+        f('performer'),
+        doc.performer,
+        `one of the lab's people: ${known.join(', ') || '(none yet)'}`,
+        `${f('performer')}: ${describe(doc.performer)} is not one of the lab's people (${known.join(', ') || 'none yet'})`,
+      );
+    }
+
+    const standards: PreparedCheck['standards'] = [];
+    doc.standards.forEach((assetId, i) => {
+      const field = f(`standards[${i}]`);
+      const s = getStandardByAsset(db, assetId);
+      if (!s) {
+        issues.add(field, assetId, 'the asset id of a lab standard', `${field}: no lab standard ${describe(assetId)} in this lab`);
+        return;
+      }
+      const cert = certificateOn(s, doc.date);
+      if (!cert) {
+        const newest = s.certificates[0];
+        issues.add(
+          field,
+          assetId,
+          'a standard whose calibration was valid on the check date',
+          `${field}: ${assetId} had no valid calibration on ${doc.date}` +
+            (newest ? ` (newest certificate ${newest.certificateId}, ${newest.calibratedOn} to ${newest.dueOn})` : ''),
+        );
+        return;
+      }
+      standards.push({ record: s, certificate: cert });
+    });
+
+    const conditions = conditionsOf(doc, settings);
+    const m = meter.meter;
+    const points: PreparedPoint[] = [];
+    doc.points.forEach((p, i) => {
+      const pf = f(`points[${i}]`);
+      const referenceHz = frequencyOrIssue(issues, p.reference, `${pf}.reference`);
+      if (referenceHz !== undefined) {
+        const out = checkInBand(referenceHz, m.minHz, m.maxHz, `${pf}.reference`);
+        if (out) issues.fromParse(`${pf}.reference`, p.reference, out, `a frequency inside the band of ${m.assetId}`);
+      }
+      const stdAsset = p.standard ?? doc.standards[0];
+      const std = standards.find((s) => s.record.assetId === stdAsset);
+      if (p.standard !== undefined && !doc.standards.includes(p.standard)) {
+        issues.add(`${pf}.standard`, p.standard, 'one of the standards listed for this check', `${pf}.standard: ${describe(p.standard)} is not listed in standards`);
+      }
+      const readings: Reading[] = [];
+      p.readings.forEach((r, j) => {
+        const v = readingValue(issues, m, r.value, `${pf}.readings[${j}].value`);
+        if (v !== undefined) readings.push({ value: v, direction: r.direction });
+      });
+      if (referenceHz === undefined || !std || readings.length !== p.readings.length || issues.list.length > 0) return;
+      const result = evaluateOrIssue(issues, pf, m, conditions, referenceHz, std.certificate, readings, settings.decisionRule);
+      if (!result) return;
+      points.push({
+        phase: p.phase,
+        referenceHz,
+        standard: std.record,
+        certificate: std.certificate,
+        readings,
+        dipDepthDb: p.dipDepthDb ?? null,
+        result,
+      });
+    });
+
+    const asLeftPoints = doc.points.filter((p) => p.phase === 'as-left').length;
+    if (doc.adjusted && asLeftPoints === 0) {
+      issues.add(f('adjusted'), true, 'as-left points after an adjustment', `${f('adjusted')}: the meter was adjusted but no point is marked "as-left"`);
+    }
+    if (!doc.adjusted && asLeftPoints > 0) {
+      issues.add(f('adjusted'), false, 'adjusted: true when as-left points are given', `${f('adjusted')}: as-left points are given but adjusted is false`);
+    }
+    const dup = findCheckId(db, meter.id, doc.date);
+    if (dup !== undefined) {
+      issues.add(f('date'), doc.date, 'one check per meter and date', `${f('date')}: a check of ${m.assetId} on ${doc.date} is already recorded (check ${dup}); amend it instead`);
+    }
+    issues.throwIfAny();
+
+    const found = points.filter((p) => p.phase === 'as-found');
+    const left = doc.adjusted ? points.filter((p) => p.phase === 'as-left') : found;
+    const asFoundVerdict = worstVerdict(found.map((p) => p.result.decision.verdict));
+    const asLeftVerdict = worstVerdict(left.map((p) => p.result.decision.verdict));
+    const worstUsedFraction = left.length
+      ? Math.max(...left.map((p) => Math.abs(p.result.errorHz) / p.result.decision.toleranceHz))
+      : null;
+    return { doc, meter, performer, conditions, standards, points, asFoundVerdict, asLeftVerdict, worstUsedFraction };
+  }
+
+  function writeCheck(c: PreparedCheck, action: string): number {
+    const at = clock.now();
+    const performer =
+      c.performer ??
+      findPersonByName(db, c.doc.performer) ??
+      insertPerson(db, { name: c.doc.performer, role: 'technician' }, at);
+    const checkId = insertCheck(
+      db,
+      {
+        meterId: c.meter.id,
+        performerId: performer.id,
+        date: c.doc.date,
+        method: c.doc.method,
+        conditions: c.conditions,
+        adjusted: c.doc.adjusted,
+        remarks: c.doc.remarks,
+        decisionRule: lab().decisionRule,
+        engineVersion: ENGINE_VERSION,
+        asFoundVerdict: c.asFoundVerdict,
+        asLeftVerdict: c.asLeftVerdict,
+        worstUsedFraction: c.worstUsedFraction,
+        standards: c.standards.map((s) => ({ standardId: s.record.id, certificateRowId: s.certificate.id })),
+        points: c.points.map((p) => ({
+          phase: p.phase,
+          referenceHz: p.referenceHz,
+          standardId: p.standard.id,
+          dipDepthDb: p.dipDepthDb,
+          readings: p.readings,
+          result: p.result,
+        })),
+      },
+      at,
+    );
+    appendAudit(db, {
+      at,
+      actor,
+      action,
+      entity: 'check',
+      entityId: String(checkId),
+      before: undefined,
+      after: { meter: c.meter.meter.assetId, date: c.doc.date, asFound: c.asFoundVerdict, asLeft: c.asLeftVerdict },
+    });
+    return checkId;
+  }
+
+  const api: LabApi = {
+    getLab() {
+      return Promise.resolve(lab());
+    },
+
+    updateLab(input) {
+      const settings = parseWith(LabSettingsSchema, input);
+      if (settings.intervalMinMonths > settings.intervalMaxMonths) {
+        throw LabError.field('intervalMinMonths', settings.intervalMinMonths, `at most intervalMaxMonths (${settings.intervalMaxMonths})`);
+      }
+      const before = getLab(db);
+      db.transaction(() => {
+        putLab(db, settings);
+        appendAudit(db, { at: clock.now(), actor, action: before ? 'update' : 'create', entity: 'lab', entityId: '1', before, after: settings });
+      })();
+      return Promise.resolve(lab());
+    },
+
+    listMeters() {
+      return Promise.resolve(registerRows(db).map(registerRow));
+    },
+
+    getMeter(assetId) {
+      const rec = meterOr404(String(assetId));
+      const row = registerRows(db).find((r) => r.assetId === rec.meter.assetId);
+      if (!row) throw new LabError('internal', `register row missing for ${rec.meter.assetId}`);
+      const detail: MeterDetail = { meter: rec.meter, register: registerRow(row), checks: listCheckSummaries(db, rec.id) };
+      return Promise.resolve(detail);
+    },
+
+    createMeter(input) {
+      const m = parseWith(MeterSchema, input);
+      const issues = new Issues();
+      const minHz = frequencyOrIssue(issues, m.min, 'min');
+      const maxHz = frequencyOrIssue(issues, m.max, 'max');
+      const absHz = parseFrequencyHz(m.accuracyAbs, 'accuracyAbs');
+      const accuracyAbsHz = absHz.ok ? absHz.hz : 0;
+      if (!absHz.ok && !/^\s*0(\.0*)?\s*[a-z]*\s*$/i.test(String(m.accuracyAbs))) {
+        issues.fromParse('accuracyAbs', m.accuracyAbs, absHz.message, 'a frequency such as "10 kHz"');
+      }
+      if (minHz !== undefined && maxHz !== undefined && !(maxHz > minHz)) {
+        issues.add('max', m.max, `a frequency above min (${describe(m.min)})`);
+      }
+      let resolution: number | undefined;
+      if (m.dialKind === 'direct') {
+        const r = parseFrequencyHz(m.resolution, 'resolution');
+        // A resolution is small (kHz to MHz), so a bare number is always ambiguous here.
+        if (r.ok && typeof m.resolution === 'string' && /[a-z]/i.test(m.resolution)) resolution = r.hz;
+        else issues.add('resolution', m.resolution, 'the dial resolution as a frequency with unit, such as "1 MHz"');
+      } else {
+        const d = parseDivisions(m.resolution, 'resolution');
+        if (d.ok && d.divisions > 0) resolution = d.divisions;
+        else issues.add('resolution', m.resolution, 'the dial resolution in divisions, such as 0.01');
+      }
+      const chart = m.chart.map((c, i) => ({
+        divisions: c.divisions,
+        frequencyHz: frequencyOrIssue(issues, c.frequency, `chart[${i}].frequency`) ?? NaN,
+      }));
+      if (m.dialKind === 'divisions') {
+        if (chart.length < 2) issues.add('chart', m.chart, 'a chart of at least two points for a divisions meter');
+        const sorted = [...chart].sort((a, b) => a.divisions - b.divisions);
+        const up = sorted.every((c, i) => i === 0 || c.frequencyHz > (sorted[i - 1]?.frequencyHz ?? -Infinity));
+        const down = sorted.every((c, i) => i === 0 || c.frequencyHz < (sorted[i - 1]?.frequencyHz ?? Infinity));
+        if (chart.length >= 2 && !up && !down) issues.add('chart', m.chart, 'a chart whose frequency rises or falls steadily with divisions');
+      }
+      const planHz: number[] = [];
+      m.plan.forEach((p, i) => {
+        const hz = frequencyOrIssue(issues, p, `plan[${i}]`);
+        if (hz === undefined || minHz === undefined || maxHz === undefined) return;
+        const out = checkInBand(hz, minHz, maxHz, `plan[${i}]`);
+        if (out) issues.fromParse(`plan[${i}]`, p, out, 'a frequency inside the band');
+        else planHz.push(hz);
+      });
+      if (getMeterByAsset(db, m.assetId)) issues.add('assetId', m.assetId, 'an asset id not already in the register', `assetId: ${m.assetId} is already in the register`);
+      issues.throwIfAny();
+      const meter: Meter = {
+        assetId: m.assetId,
+        description: m.description,
+        construction: m.construction,
+        port: m.port,
+        minHz: minHz as number,
+        maxHz: maxHz as number,
+        dialKind: m.dialKind,
+        accuracyRelPpm: m.accuracyRelPpm,
+        accuracyAbsHz,
+        resolution: resolution as number,
+        chart: m.dialKind === 'divisions' ? chart : [],
+        alphaPerK: m.alphaPerK,
+        alphaUncertaintyPerK: m.alphaUncertaintyPerK,
+        reference: m.reference,
+        loadedQ: m.loadedQ,
+        settingFraction: m.settingFraction,
+        minDipDb: m.minDipDb,
+        maxInputPowerW: m.maxInputPowerW,
+        location: m.location,
+        state: m.state,
+        intervalMonths: m.intervalMonths,
+        planHz: [...new Set(planHz)].sort((a, b) => a - b),
+      };
+      db.transaction(() => {
+        const at = clock.now();
+        insertMeter(db, meter, at);
+        appendAudit(db, { at, actor, action: 'create', entity: 'meter', entityId: meter.assetId, before: undefined, after: meter });
+      })();
+      return Promise.resolve(meterOr404(meter.assetId).meter);
+    },
+
+    listDue(query) {
+      const within = Number(query?.withinDays);
+      if (!Number.isInteger(within) || within < 0 || within > 3650) {
+        throw LabError.field('withinDays', query?.withinDays, 'a whole number of days from 0 to 3650');
+      }
+      const rows = registerRows(db)
+        .map(registerRow)
+        .filter((r) => r.state !== 'withdrawn' && (r.daysToDue === null || r.daysToDue <= within))
+        .sort((a, b) => (a.daysToDue ?? -Infinity) - (b.daysToDue ?? -Infinity));
+      return Promise.resolve(rows);
+    },
+
+    listStandards() {
+      return Promise.resolve(listStandards(db).map(toStandard));
+    },
+
+    createStandard(input) {
+      const s = parseWith(StandardSchema, input);
+      const issues = new Issues();
+      s.certificates.forEach((c, i) => {
+        if (c.dueOn <= c.calibratedOn) issues.add(`certificates[${i}].dueOn`, c.dueOn, `a date after calibratedOn (${c.calibratedOn})`);
+      });
+      if (getStandardByAsset(db, s.assetId)) issues.add('assetId', s.assetId, 'an asset id not already used', `assetId: ${s.assetId} is already a lab standard`);
+      const ids = new Set<string>();
+      s.certificates.forEach((c, i) => {
+        if (ids.has(c.certificateId)) issues.add(`certificates[${i}].certificateId`, c.certificateId, 'certificate numbers that differ');
+        ids.add(c.certificateId);
+      });
+      issues.throwIfAny();
+      db.transaction(() => {
+        const at = clock.now();
+        insertStandard(db, s, at);
+        appendAudit(db, { at, actor, action: 'create', entity: 'standard', entityId: s.assetId, before: undefined, after: s });
+      })();
+      const rec = getStandardByAsset(db, s.assetId);
+      if (!rec) throw new LabError('internal', 'standard not found after writing it');
+      return Promise.resolve(toStandard(rec));
+    },
+
+    listPeople() {
+      return Promise.resolve(listPeople(db));
+    },
+
+    createPerson(input) {
+      const p = parseWith(PersonSchema, input);
+      if (findPersonByName(db, p.name)) throw LabError.field('name', p.name, 'a name not already in the lab', `name: ${p.name} is already one of the lab's people`);
+      let person: Person | undefined;
+      db.transaction(() => {
+        const at = clock.now();
+        person = insertPerson(db, p, at);
+        appendAudit(db, { at, actor, action: 'create', entity: 'person', entityId: String(person.id), before: undefined, after: p });
+      })();
+      return Promise.resolve(person as Person);
+    },
+
+    recordCheck(input) {
+      const prepared = prepareCheck(input, '', { createPerformer: false });
+      let checkId = 0;
+      db.transaction(() => {
+        checkId = writeCheck(prepared, 'record');
+      })();
+      const rec = getCheck(db, checkId);
+      if (!rec) throw new LabError('internal', 'check not found after writing it');
+      return Promise.resolve(rec);
+    },
+
+    getCheck(checkId) {
+      const id = Number(checkId);
+      if (!Number.isInteger(id) || id < 1) throw LabError.field('checkId', checkId, 'a check number such as 12');
+      const rec = getCheck(db, id);
+      if (!rec) throw new LabError('not-found', `no check ${id} in this lab`);
+      return Promise.resolve(rec);
+    },
+
+    evaluateBudget(input) {
+      const doc = parseWith(BudgetDocumentSchema, input);
+      const settings = lab();
+      const issues = new Issues();
+      const meter = getMeterByAsset(db, doc.meter);
+      if (!meter) issues.add('meter', doc.meter, 'the asset id of a meter in this lab', `meter: no meter ${describe(doc.meter)} in this lab`);
+      const std = getStandardByAsset(db, doc.standard);
+      if (!std) issues.add('standard', doc.standard, 'the asset id of a lab standard', `standard: no lab standard ${describe(doc.standard)} in this lab`);
+      issues.throwIfAny();
+      const m = (meter as MeterRecord).meter;
+      const cert = certificateOn(std as StandardRecord, clock.today()) ?? (std as StandardRecord).certificates[0];
+      if (!cert) throw LabError.field('standard', doc.standard, 'a standard with a certificate');
+      const referenceHz = frequencyOrIssue(issues, doc.reference, 'reference');
+      if (referenceHz !== undefined) {
+        const out = checkInBand(referenceHz, m.minHz, m.maxHz, 'reference');
+        if (out) issues.fromParse('reference', doc.reference, out, `a frequency inside the band of ${m.assetId}`);
+      }
+      const readings: Reading[] = [];
+      doc.readings.forEach((r, j) => {
+        const v = readingValue(issues, m, r.value, `readings[${j}].value`);
+        if (v !== undefined) readings.push({ value: v, direction: r.direction });
+      });
+      issues.throwIfAny();
+      const result = evaluateOrIssue(
+        issues,
+        'readings',
+        m,
+        conditionsOf(doc, settings),
+        referenceHz as number,
+        cert,
+        readings,
+        doc.decisionRule ?? settings.decisionRule,
+      );
+      issues.throwIfAny();
+      return Promise.resolve(result as PointResult);
+    },
+
+    airRefractivity(input) {
+      const a = parseWith(AirSchema, input);
+      const n = refractivityN(a.temperatureC, a.pressureHpa, a.humidityPct);
+      // Reference air of a meter's graduation unless a meter says otherwise (common practice).
+      const referenceN = refractivityN(20, 1013.25, 50);
+      const result: AirResult = {
+        refractivityN: n,
+        refractiveIndex: 1 + n * 1e-6,
+        waterVapourHpa: waterVapourPressureHpa(a.temperatureC, a.pressureHpa, a.humidityPct),
+        shiftPpm: ((1 + referenceN * 1e-6) / (1 + n * 1e-6) - 1) * 1e6,
+        referenceN,
+      };
+      return Promise.resolve(result);
+    },
+
+    importCsv(csvText) {
+      if (typeof csvText !== 'string') throw LabError.field('csv', csvText, 'the text of a CSV file');
+      const docs = csvToDocuments(csvText);
+      const prepared = docs.map((d) => prepareCheckAtLine(d));
+      const result: ImportResult = { metersSeen: new Set(docs.map((d) => d.doc.meter)).size, checksImported: 0, pointsImported: 0 };
+      db.transaction(() => {
+        for (const p of prepared) {
+          writeCheck(p, 'import');
+          result.checksImported += 1;
+          result.pointsImported += p.points.length;
+        }
+      })();
+      return Promise.resolve(result);
+    },
+
+    exportCsv() {
+      const rows: (string | number)[][] = [CSV_COLUMNS.slice()];
+      for (const id of allCheckIds(db)) {
+        const c = getCheck(db, id);
+        if (!c) continue;
+        const meter = meterOr404(c.meterAssetId).meter;
+        for (const p of c.points) {
+          p.readings.forEach((r) => {
+            rows.push([
+              c.meterAssetId,
+              c.date,
+              c.performer,
+              c.standards.join(';'),
+              c.method,
+              c.conditions.temperatureC,
+              c.conditions.temperatureUncertaintyC,
+              c.conditions.pressureHpa,
+              c.conditions.pressureUncertaintyHpa,
+              c.conditions.humidityPct,
+              c.conditions.humidityUncertaintyPct,
+              c.adjusted ? 'yes' : 'no',
+              p.seq,
+              p.phase,
+              p.referenceHz,
+              p.standardAssetId,
+              r.value,
+              meter.dialKind === 'direct' ? 'Hz' : 'div',
+              r.direction,
+              p.dipDepthDb ?? '',
+              c.remarks,
+            ]);
+          });
+        }
+      }
+      return Promise.resolve(stringifyCsv(rows, { record_delimiter: '\r\n' }));
+    },
+  };
+
+  /** A check rebuilt from CSV rows, with the line numbers it came from for messages. */
+  function prepareCheckAtLine(d: { doc: unknown; lines: string }): PreparedCheck {
+    try {
+      return prepareCheck(d.doc, '', { createPerformer: true });
+    } catch (e) {
+      if (e instanceof LabError) {
+        const issues = e.issues.map((i) => ({ ...i, field: `lines ${d.lines}: ${i.field}`, message: `lines ${d.lines}: ${i.message}` }));
+        throw new LabError(e.code, issues[0]?.message ?? `lines ${d.lines}: ${e.message}`, issues);
+      }
+      throw e;
+    }
+  }
+
+  return api;
+}
+
+/** Columns of the history CSV (RFC 4180), one row per reading. Documented in docs/exchange.md. */
+export const CSV_COLUMNS = [
+  'meter',
+  'date',
+  'performer',
+  'standards',
+  'method',
+  'temperature_c',
+  'u_temperature_c',
+  'pressure_hpa',
+  'u_pressure_hpa',
+  'humidity_pct',
+  'u_humidity_pct',
+  'adjusted',
+  'point',
+  'phase',
+  'reference_hz',
+  'standard',
+  'reading',
+  'reading_unit',
+  'direction',
+  'dip_depth_db',
+  'remarks',
+] as const;
+
+type CsvRow = Record<(typeof CSV_COLUMNS)[number], string>;
+
+/** Groups CSV rows into check documents (meter + date), each with its line range. */
+export function csvToDocuments(text: string): { doc: { meter: string } & Record<string, unknown>; lines: string }[] {
+  let records: { record: CsvRow; line: number }[];
+  try {
+    const parsed = parseCsv(text, { columns: true, skip_empty_lines: true, trim: true, info: true, bom: true }) as {
+      record: CsvRow;
+      info: { lines: number };
+    }[];
+    records = parsed.map((p) => ({ record: p.record, line: p.info.lines }));
+  } catch (e) {
+    throw LabError.field('csv', undefined, 'a CSV file (RFC 4180)', `csv: ${e instanceof Error ? e.message : String(e)}`);
+  }
+  const header = text.replace(/^\uFEFF/, '').split(/\r?\n/, 1)[0] ?? '';
+  const cols = header.split(',').map((c) => c.trim().replace(/^"|"$/g, ''));
+  const missing = CSV_COLUMNS.filter((c) => !['remarks', 'dip_depth_db', 'method', 'u_temperature_c', 'u_pressure_hpa', 'u_humidity_pct'].includes(c) && !cols.includes(c));
+  if (missing.length) {
+    throw LabError.field('csv header', header, `the columns ${CSV_COLUMNS.join(', ')}`, `csv header: missing column(s) ${missing.join(', ')}`);
+  }
+  const groups = new Map<string, { rows: typeof records }>();
+  for (const r of records) {
+    const key = `${r.record.meter}\u0000${r.record.date}`;
+    const g = groups.get(key) ?? { rows: [] };
+    g.rows.push(r);
+    groups.set(key, g);
+  }
+  const num = (s: string | undefined): number | string | undefined => {
+    if (s === undefined || s === '') return undefined;
+    const n = Number(s);
+    return Number.isFinite(n) ? n : s;
+  };
+  const out: { doc: { meter: string } & Record<string, unknown>; lines: string }[] = [];
+  for (const g of groups.values()) {
+    const first = g.rows[0];
+    if (!first) continue;
+    const f = first.record;
+    const lines = `${first.line}-${g.rows[g.rows.length - 1]?.line ?? first.line}`;
+    const points = new Map<string, { phase: string; reference: string; standard: string; readings: { value: string | number; direction: string }[]; dipDepthDb?: number | string }>();
+    for (const { record: r } of g.rows) {
+      const key = r.point;
+      const p = points.get(key) ?? {
+        phase: r.phase,
+        reference: `${r.reference_hz} Hz`,
+        standard: r.standard,
+        readings: [],
+        ...(r.dip_depth_db ? { dipDepthDb: num(r.dip_depth_db) } : {}),
+      };
+      p.readings.push({ value: r.reading_unit === 'Hz' ? `${r.reading} Hz` : (num(r.reading) ?? r.reading), direction: r.direction });
+      points.set(key, p);
+    }
+    out.push({
+      lines,
+      doc: {
+        format: 'dipledger.check/1',
+        meter: f.meter,
+        date: f.date,
+        performer: f.performer,
+        standards: f.standards.split(';').map((s) => s.trim()).filter(Boolean),
+        method: f.method || 'tune-to-dip',
+        conditions: {
+          temperatureC: num(f.temperature_c),
+          temperatureUncertaintyC: num(f.u_temperature_c),
+          pressureHpa: num(f.pressure_hpa),
+          pressureUncertaintyHpa: num(f.u_pressure_hpa),
+          humidityPct: num(f.humidity_pct),
+          humidityUncertaintyPct: num(f.u_humidity_pct),
+        },
+        adjusted: /^(yes|true|1)$/i.test(f.adjusted),
+        remarks: f.remarks ?? '',
+        points: [...points.values()],
+      },
+    });
+  }
+  return out;
+}

@@ -1,0 +1,390 @@
+// The `dipledger` command: a thin shell over the LabApi. Parses arguments, calls one
+// operation, prints a table or JSON (SI units). Exit codes: 0 ok, 1 a verdict that is not a
+// pass where --require-pass asks, 2 bad input (nothing written), 3 an internal fault.
+import { readFileSync, writeFileSync } from 'node:fs';
+import { homedir } from 'node:os';
+import path from 'node:path';
+import { parseArgs } from 'node:util';
+import { LabError } from '../api/errors';
+import { encodeJson } from '../api/json';
+import { openApi, type OpenedLab } from '../api/open';
+import type { CheckRecord, RegisterRow } from '../api/contract';
+import { systemClock, fixedClock, type Clock } from '../api/service';
+import { StoreError } from '../../db/store';
+import { formatFrequency } from '../engine';
+import type { PointResult, Verdict } from '../engine/model';
+import { labFilePath } from '../desktop/startup';
+import { createLabFile } from '../../sample-lab/load';
+
+export const USAGE = `dipledger: calibration records for cavity frequency meters
+
+usage: dipledger [--db FILE] [--json] COMMAND [ARGS]
+
+  init [--sample] [--name NAME]      create a lab file, optionally with the demo lab
+  refs                               the register: every meter, band, state, due date
+  due [--within DAYS]                meters due within DAYS (default 30) or overdue
+  show REF                           one meter: identity, state, due date, history
+  record FILE.json [--require-pass]  record a check from an exchange document
+  budget FILE.json [--require-pass]  one point's uncertainty budget and decision
+  air --temp C --rh PCT --pressure HPA   refractivity N, index n, shift vs reference air
+  import FILE.csv                    bulk history in (all or nothing)
+  export [--out FILE.csv]            bulk history out
+  serve [--port N]                   the UI in a browser on 127.0.0.1
+
+  --db FILE   the lab file (default: $DIPLEDGER_DB or the user's data folder)
+  --json      machine-readable output in SI units (Hz, ppm, degC, hPa)
+
+Frequencies take units: 9.3GHz, "9300 MHz", 9.3e9. Exit codes: 0 ok, 1 not a pass
+where --require-pass asks, 2 bad input (nothing written).
+Verdicts support, and never replace, the lab's quality system and accredited practice.`;
+
+export interface CliIo {
+  out(text: string): void;
+  err(text: string): void;
+  env: NodeJS.ProcessEnv;
+  cwd: string;
+  clock: Clock;
+}
+
+class UsageError extends Error {}
+
+const VERDICT_WORDS: Record<Verdict, string> = {
+  pass: 'PASS',
+  'conditional-pass': 'PASS (conditional)',
+  'conditional-fail': 'FAIL (conditional)',
+  fail: 'FAIL',
+};
+
+function table(header: string[], rows: string[][], rightAligned: number[] = []): string {
+  const widths = header.map((h, i) => Math.max(h.length, ...rows.map((r) => (r[i] ?? '').length)));
+  const line = (cells: string[]) =>
+    cells
+      .map((c, i) => (rightAligned.includes(i) ? c.padStart(widths[i] ?? 0) : c.padEnd(widths[i] ?? 0)))
+      .join('  ')
+      .trimEnd();
+  return [line(header), line(widths.map((w) => '-'.repeat(w))), ...rows.map(line)].join('\n');
+}
+
+const band = (r: { minHz: number; maxHz: number }) => `${formatFrequency(r.minHz, 4)} - ${formatFrequency(r.maxHz, 4)}`;
+const verdictWord = (v: Verdict | null) => (v ? VERDICT_WORDS[v] : '-');
+const dueWords = (r: RegisterRow) =>
+  r.daysToDue === null ? 'never checked' : r.daysToDue < 0 ? `OVERDUE ${-r.daysToDue} d` : `${r.daysToDue} d`;
+
+function registerTable(rows: RegisterRow[]): string {
+  return table(
+    ['meter', 'description', 'band', 'state', 'last check', 'verdict', 'due', 'in'],
+    rows.map((r) => [
+      r.assetId,
+      r.description,
+      band(r),
+      r.state,
+      r.lastCheckDate ?? '-',
+      verdictWord(r.lastVerdict),
+      r.dueDate ?? '-',
+      dueWords(r),
+    ]),
+    [7],
+  );
+}
+
+function budgetText(p: PointResult, referenceHz: number): string {
+  const b = p.budget;
+  const rows = b.contributions.map((c) => [
+    c.label,
+    c.type,
+    c.distribution,
+    `${fmt(c.standardUncertainty)} ${c.unit}`,
+    `${fmt(c.sensitivity)} Hz/${c.unit}`,
+    fmt(c.contributionHz),
+    Number.isFinite(c.dof) ? String(Math.round(c.dof * 10) / 10) : 'inf',
+  ]);
+  const lines = [
+    table(['input quantity', 'type', 'distribution', 'u(x)', 'c', 'u(y) / Hz', 'dof'], rows, [3, 4, 5, 6]),
+    '',
+    `reference frequency  ${formatFrequency(referenceHz, 10)}`,
+    `indication           ${formatFrequency(p.indicatedHz, 10)}`,
+    `corrected to ref.    ${formatFrequency(p.correctedHz, 10)}  (thermal ${fmtPpm(p.thermalCorrectionPpm)}, air ${fmtPpm(p.airCorrectionPpm)})`,
+    `error                ${fmt(p.errorHz)} Hz  (${fmtPpm(p.errorPpm)})`,
+    `combined u_c         ${fmt(b.combinedHz)} Hz   effective dof ${Number.isFinite(b.effectiveDof) ? b.effectiveDof.toFixed(1) : 'inf'}`,
+    `expanded U           ${fmt(b.expandedHz)} Hz  (k = ${b.coverageFactor.toFixed(2)}, p = ${(b.coverageProbability * 100).toFixed(2)} %; ${fmtPpm(p.expandedPpm)})`,
+    `tolerance            +/- ${fmt(p.decision.toleranceHz)} Hz   acceptance limit ${fmt(p.decision.acceptanceLimitHz)} Hz`,
+    `TUR                  ${p.decision.tur.toFixed(2)}`,
+    `P(conformity)        ${(p.decision.probabilityOfConformity * 100).toFixed(2)} %  (JCGM 106)`,
+    `decision rule        ${ruleWords(p.decision.rule)}`,
+    `verdict              ${VERDICT_WORDS[p.decision.verdict]}`,
+  ];
+  for (const n of p.notes) lines.push(`note: ${n}`);
+  return lines.join('\n');
+}
+
+function ruleWords(rule: PointResult['decision']['rule']): string {
+  switch (rule.kind) {
+    case 'simple':
+      return 'simple acceptance (ILAC-G8:09/2019 4.2.1)';
+    case 'guarded':
+      return `binary with guard band w = ${rule.multipleOfU} U (ILAC-G8:09/2019 4.2.2)`;
+    case 'guarded-fixed':
+      return `binary with guard band w = ${rule.guardBandPpm} ppm (ILAC-G8:09/2019 4.2.2)`;
+    case 'non-binary':
+      return 'non-binary with guard band w = U (ILAC-G8:09/2019 4.2.3)';
+  }
+}
+
+function fmt(x: number): string {
+  if (x === 0) return '0';
+  const a = Math.abs(x);
+  return a >= 1e4 || a < 1e-2 ? x.toExponential(3) : x.toPrecision(4);
+}
+const fmtPpm = (x: number) => `${x >= 0 ? '+' : ''}${x.toFixed(1)} ppm`;
+
+function checkText(c: CheckRecord): string {
+  const head = [
+    `check ${c.checkId} revision ${c.revision} (${c.state}) of ${c.meterAssetId} on ${c.date} by ${c.performer}`,
+    `standards ${c.standards.join(', ')}; ${c.conditions.temperatureC} degC, ${c.conditions.pressureHpa} hPa, ${c.conditions.humidityPct} %RH`,
+    `as found ${verdictWord(c.asFoundVerdict)}; as left ${verdictWord(c.asLeftVerdict)}${c.adjusted ? ' (adjusted)' : ''}`,
+    '',
+  ];
+  const rows = c.points.map((p) => [
+    String(p.seq),
+    p.phase,
+    formatFrequency(p.referenceHz, 7),
+    fmtPpm(p.result.errorPpm),
+    `${p.result.expandedPpm.toFixed(1)} ppm`,
+    p.result.budget.coverageFactor.toFixed(2),
+    `${((Math.abs(p.result.errorHz) / p.result.decision.toleranceHz) * 100).toFixed(0)} %`,
+    VERDICT_WORDS[p.result.decision.verdict],
+  ]);
+  return head.join('\n') + table(['#', 'phase', 'reference', 'error', 'U', 'k', 'of tol.', 'verdict'], rows, [0, 3, 4, 5, 6]);
+}
+
+function readJsonFile(file: string, cwd: string): unknown {
+  const full = path.resolve(cwd, file);
+  let text: string;
+  try {
+    text = readFileSync(full, 'utf8');
+  } catch {
+    throw LabError.field('FILE', file, 'a readable file', `cannot read ${file}`);
+  }
+  try {
+    return JSON.parse(text) as unknown;
+  } catch (e) {
+    throw LabError.field('FILE', file, 'a JSON document', `${file} is not valid JSON: ${e instanceof Error ? e.message : String(e)}`);
+  }
+}
+
+function numberOption(name: string, value: string | undefined, required: boolean): number | undefined {
+  if (value === undefined) {
+    if (required) throw new UsageError(`--${name} is required`);
+    return undefined;
+  }
+  const n = Number(value.trim());
+  if (value.trim() === '' || !Number.isFinite(n)) {
+    throw LabError.field(`--${name}`, value, 'a number', `--${name}: ${JSON.stringify(value)} is not a number`);
+  }
+  return n;
+}
+
+/** Runs one command line; returns the exit code. Never throws. */
+export async function runCli(argv: string[], io: CliIo): Promise<number> {
+  let opened: OpenedLab | undefined;
+  let json = false;
+  try {
+    const { values, positionals } = parseArgs({
+      args: argv,
+      allowPositionals: true,
+      strict: true,
+      options: {
+        db: { type: 'string' },
+        json: { type: 'boolean', default: false },
+        sample: { type: 'boolean', default: false },
+        name: { type: 'string' },
+        within: { type: 'string' },
+        temp: { type: 'string' },
+        rh: { type: 'string' },
+        pressure: { type: 'string' },
+        out: { type: 'string' },
+        port: { type: 'string' },
+        'require-pass': { type: 'boolean', default: false },
+        help: { type: 'boolean', short: 'h', default: false },
+      },
+    });
+    json = values.json;
+    const [command, ...rest] = positionals;
+    if (values.help || !command) {
+      io.out(USAGE);
+      return command || values.help ? 0 : 2;
+    }
+    const dbFile = values.db ? path.resolve(io.cwd, values.db) : labFilePath(io.env, process.platform, homedir());
+    const print = (value: unknown, text: () => string) => io.out(json ? encodeJson(value, 2) : text());
+    const open = () => (opened = openApi(dbFile, { clock: io.clock, actor: io.env.USER ?? 'cli' }));
+    const arg = (name: string) => {
+      const v = rest[0];
+      if (!v) throw new UsageError(`${command} needs ${name}`);
+      return v;
+    };
+
+    switch (command) {
+      case 'init': {
+        await createLabFile(dbFile, values.sample, { clock: io.clock, name: values.name });
+        const lab = open();
+        const rows = await lab.api.listMeters();
+        print({ file: dbFile, meters: rows.length }, () => `created ${dbFile}${values.sample ? ` with the demo lab (${rows.length} meters)` : ''}`);
+        return 0;
+      }
+      case 'refs': {
+        const rows = await open().api.listMeters();
+        print(rows, () => registerTable(rows));
+        return 0;
+      }
+      case 'due': {
+        const within = numberOption('within', values.within, false) ?? 30;
+        const rows = await open().api.listDue({ withinDays: within });
+        print(rows, () => (rows.length ? registerTable(rows) : `nothing due within ${within} days`));
+        return 0;
+      }
+      case 'show': {
+        const detail = await open().api.getMeter(arg('REF'));
+        print(detail, () => {
+          const m = detail.meter;
+          const r = detail.register;
+          const lines = [
+            `${m.assetId}  ${m.description}`,
+            `${m.construction} ${m.port}, ${band(m)}, ${m.dialKind === 'direct' ? 'direct-reading dial' : 'micrometer in divisions with a chart'}`,
+            `stated accuracy ${m.accuracyRelPpm} ppm of reading${m.accuracyAbsHz ? ` + ${formatFrequency(m.accuracyAbsHz, 3)}` : ''}; loaded Q ${m.loadedQ}; max input ${m.maxInputPowerW} W`,
+            `state ${m.state}; interval ${m.intervalMonths} months; last check ${r.lastCheckDate ?? '-'}; due ${r.dueDate ?? '-'} (${dueWords(r)})`,
+            `location ${m.location || '-'}`,
+            '',
+            table(
+              ['check', 'rev', 'date', 'performer', 'as found', 'as left', 'worst'],
+              detail.checks.map((c) => [
+                String(c.checkId),
+                String(c.revision),
+                c.date,
+                c.performer,
+                verdictWord(c.asFoundVerdict),
+                verdictWord(c.asLeftVerdict),
+                c.worstUsedFraction === null ? '-' : `${(c.worstUsedFraction * 100).toFixed(0)} % of tol.`,
+              ]),
+              [0, 1, 6],
+            ),
+          ];
+          return lines.join('\n');
+        });
+        return 0;
+      }
+      case 'record': {
+        const doc = readJsonFile(arg('FILE.json'), io.cwd);
+        const rec = await open().api.recordCheck(doc as never);
+        print(rec, () => checkText(rec));
+        return values['require-pass'] && rec.asLeftVerdict !== 'pass' ? 1 : 0;
+      }
+      case 'budget': {
+        const doc = readJsonFile(arg('FILE.json'), io.cwd);
+        const res = await open().api.evaluateBudget(doc as never);
+        const ref = (doc as { reference?: unknown }).reference;
+        print(res, () => budgetText(res, res.correctedHz - res.errorHz) + (ref ? '' : ''));
+        return values['require-pass'] && res.decision.verdict !== 'pass' ? 1 : 0;
+      }
+      case 'air': {
+        const input = {
+          temperatureC: numberOption('temp', values.temp, true),
+          humidityPct: numberOption('rh', values.rh, true),
+          pressureHpa: numberOption('pressure', values.pressure, true),
+        };
+        // Pure computation: a lab file is opened only if one exists, for nothing but the API.
+        const lab = openApi(':memory:', { clock: io.clock });
+        opened = lab;
+        const r = await lab.api.airRefractivity(input as never);
+        print(r, () =>
+          [
+            `refractivity N      ${r.refractivityN.toFixed(2)}  (ITU-R P.453)`,
+            `refractive index n  ${r.refractiveIndex.toFixed(8)}`,
+            `water vapour e      ${r.waterVapourHpa.toFixed(2)} hPa`,
+            `resonance shift     ${fmtPpm(r.shiftPpm)} against reference air (20 degC, 1013.25 hPa, 50 %RH; N = ${r.referenceN.toFixed(2)})`,
+          ].join('\n'),
+        );
+        return 0;
+      }
+      case 'import': {
+        const file = arg('FILE.csv');
+        let text: string;
+        try {
+          text = readFileSync(path.resolve(io.cwd, file), 'utf8');
+        } catch {
+          throw LabError.field('FILE', file, 'a readable CSV file', `cannot read ${file}`);
+        }
+        const r = await open().api.importCsv(text);
+        print(r, () => `imported ${r.checksImported} checks (${r.pointsImported} points) of ${r.metersSeen} meters`);
+        return 0;
+      }
+      case 'export': {
+        const csv = await open().api.exportCsv();
+        if (values.out) {
+          writeFileSync(path.resolve(io.cwd, values.out), csv);
+          print({ file: values.out }, () => `wrote ${values.out}`);
+        } else io.out(csv.trimEnd());
+        return 0;
+      }
+      case 'serve': {
+        const port = numberOption('port', values.port, false) ?? 5317;
+        const lab = open();
+        const { startServer } = await import('../server/server');
+        const staticDir = path.resolve(path.dirname(new URL(import.meta.url).pathname), '../../renderer/dist');
+        const server = await startServer({ api: lab.api, port, staticDir });
+        io.out(`Dipledger: ${server.url}  (Ctrl+C to stop)`);
+        opened = undefined; // keep the lab open while serving
+        await new Promise<void>((resolve) => process.once('SIGINT', () => resolve()));
+        await server.close();
+        lab.close();
+        return 0;
+      }
+      default:
+        throw new UsageError(`unknown command "${command}"`);
+    }
+  } catch (e) {
+    return report(e, io, json);
+  } finally {
+    opened?.close();
+  }
+}
+
+function report(e: unknown, io: CliIo, json: boolean): number {
+  if (e instanceof UsageError || (e instanceof TypeError && 'code' in e && String(e.code).startsWith('ERR_PARSE_ARGS'))) {
+    io.err(`dipledger: ${e.message}\nrun "dipledger --help" for usage`);
+    return 2;
+  }
+  if (e instanceof LabError) {
+    if (json) io.err(encodeJson({ error: { code: e.code, message: e.message, issues: e.issues } }, 2));
+    else {
+      io.err(`dipledger: ${e.message}`);
+      for (const i of e.issues.slice(1)) io.err(`  ${i.message}`);
+      if (e.code === 'invalid-input') io.err('nothing was written.');
+    }
+    return e.code === 'internal' ? 3 : 2;
+  }
+  if (e instanceof StoreError) {
+    io.err(`dipledger: ${e.message}`);
+    return 2;
+  }
+  io.err(`dipledger: internal error: ${e instanceof Error ? (e.stack ?? e.message) : String(e)}`);
+  return 3;
+}
+
+export function processIo(): CliIo {
+  const fixed = process.env.DIPLEDGER_TODAY;
+  return {
+    out: (t) => process.stdout.write(`${t}\n`),
+    err: (t) => process.stderr.write(`${t}\n`),
+    env: process.env,
+    cwd: process.cwd(),
+    // DIPLEDGER_TODAY pins the clock (reproducible examples and tests); otherwise the system clock.
+    clock: fixed && /^\d{4}-\d{2}-\d{2}$/.test(fixed) ? fixedClock(`${fixed}T12:00:00.000Z`) : systemClock,
+  };
+}
+
+const invokedDirectly = process.argv[1] && path.resolve(process.argv[1]) === path.resolve(new URL(import.meta.url).pathname);
+if (invokedDirectly) {
+  void runCli(process.argv.slice(2), processIo()).then((code) => {
+    process.exitCode = code;
+  });
+}

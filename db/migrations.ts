@@ -1,0 +1,24 @@
+// The ordered list of schema migrations. Each is a numbered SQL file in db/migrations/; the
+// list must only increase, and the version reached is stored in the file (PRAGMA user_version)
+// together with a row per applied migration.
+import { readFileSync } from 'node:fs';
+
+export interface Migration {
+  version: number;
+  name: string;
+  sql: string;
+}
+
+const FILES: ReadonlyArray<readonly [number, string]> = [[1, '0001_initial.sql']];
+
+function load(version: number, file: string): Migration {
+  const sql = readFileSync(new URL(`./migrations/${file}`, import.meta.url), 'utf8');
+  return { version, name: file.replace(/^\d+_/, '').replace(/\.sql$/, ''), sql };
+}
+
+export const MIGRATIONS: readonly Migration[] = FILES.map(([v, f]) => load(v, f));
+
+export const LATEST_VERSION: number = MIGRATIONS.reduce((max, m) => {
+  if (m.version !== max + 1) throw new Error(`migrations must be numbered 1, 2, 3...: found ${m.version} after ${max}`);
+  return m.version;
+}, 0);

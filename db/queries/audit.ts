@@ -1,0 +1,35 @@
+// The audit trail: append-only entries, each carrying the hash of the one before it, so any
+// edit or removal breaks the chain (verification comes with the records-integrity work).
+import { createHash } from 'node:crypto';
+import type { LabDb } from '../store';
+
+export interface AuditInput {
+  at: string;
+  actor: string;
+  action: string;
+  entity: string;
+  entityId: string;
+  before: unknown;
+  after: unknown;
+}
+
+export const GENESIS_HASH = '0'.repeat(64);
+
+export function appendAudit(db: LabDb, e: AuditInput): string {
+  const last = db.prepare('SELECT hash FROM audit_entry ORDER BY id DESC LIMIT 1').get() as { hash: string } | undefined;
+  const prevHash = last?.hash ?? GENESIS_HASH;
+  const beforeJson = e.before === undefined ? null : JSON.stringify(e.before);
+  const afterJson = e.after === undefined ? null : JSON.stringify(e.after);
+  const hash = createHash('sha256')
+    .update(JSON.stringify([prevHash, e.at, e.actor, e.action, e.entity, e.entityId, beforeJson, afterJson]))
+    .digest('hex');
+  db.prepare(
+    `INSERT INTO audit_entry (at, actor, action, entity, entity_id, before_json, after_json, prev_hash, hash)
+     VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)`,
+  ).run(e.at, e.actor, e.action, e.entity, e.entityId, beforeJson, afterJson, prevHash, hash);
+  return hash;
+}
+
+export function auditCount(db: LabDb): number {
+  return (db.prepare('SELECT count(*) AS n FROM audit_entry').get() as { n: number }).n;
+}
