@@ -35,11 +35,8 @@ export function openLabDb(file: string, options: OpenOptions = {}): LabDb {
   }
   const db = new Database(file, { readonly: options.readonly ?? false, fileMustExist: !options.create && !memory });
   try {
-    // WAL lets the UI read while a long import writes; busy_timeout rides over short locks.
-    if (!memory && !options.readonly) db.pragma('journal_mode = WAL');
-    db.pragma('foreign_keys = ON');
     db.pragma('busy_timeout = 5000');
-    db.pragma('synchronous = NORMAL');
+    // Identity and version are checked before anything is set, so a refused file is untouched.
     const appId = db.pragma('application_id', { simple: true }) as number;
     const version = db.pragma('user_version', { simple: true }) as number;
     const tables = (db.prepare("SELECT count(*) AS n FROM sqlite_master WHERE type = 'table'").get() as { n: number }).n;
@@ -53,6 +50,10 @@ export function openLabDb(file: string, options: OpenOptions = {}): LabDb {
           'Open it with a newer version; nothing was changed.',
       );
     }
+    // WAL lets the UI read while a long import writes; busy_timeout rides over short locks.
+    if (!memory && !options.readonly) db.pragma('journal_mode = WAL');
+    db.pragma('foreign_keys = ON');
+    db.pragma('synchronous = NORMAL');
     if (!options.readonly) migrate(db as LabDb, options.targetVersion ?? LATEST_VERSION);
     return db as LabDb;
   } catch (e) {

@@ -8,6 +8,7 @@ import type { z } from 'zod';
 import {
   ENGINE_VERSION,
   checkInBand,
+  formatFrequency,
   evaluatePoint,
   parseDivisions,
   parseFrequencyHz,
@@ -27,12 +28,14 @@ import type {
   ImportResult,
   LabApi,
   LabSettings,
+  OperationName,
   Meter,
   MeterDetail,
   Person,
   RegisterRow,
   Standard,
 } from './contract';
+import { OPERATIONS } from './contract';
 import { LabError, describe, fromZod, type FieldIssue } from './errors';
 import {
   AirSchema,
@@ -194,9 +197,14 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
       if (hz === undefined) return undefined;
       // A meter read at its band edge may show its own error: allow twice the stated accuracy.
       const slack = 2 * (meter.accuracyRelPpm * 1e-6);
-      const out = checkInBand(hz, meter.minHz * (1 - slack), meter.maxHz * (1 + slack), field);
-      if (out) {
-        issues.fromParse(field, value, out, `a reading inside the band of ${meter.assetId}`);
+      if (checkInBand(hz, meter.minHz * (1 - slack), meter.maxHz * (1 + slack), field)) {
+        const bandText = `${formatFrequency(meter.minHz, 4)} to ${formatFrequency(meter.maxHz, 4)}`;
+        issues.fromParse(
+          field,
+          value,
+          `${field}: ${describe(value)} is outside the band of ${meter.assetId} (${bandText})`,
+          `a reading inside the band of ${meter.assetId}`,
+        );
         return undefined;
       }
       return hz;
@@ -422,9 +430,9 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
     return checkId;
   }
 
-  const api: LabApi = {
+  const api: SyncLabApi = {
     getLab() {
-      return Promise.resolve(lab());
+      return lab();
     },
 
     updateLab(input) {
@@ -437,11 +445,11 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
         putLab(db, settings);
         appendAudit(db, { at: clock.now(), actor, action: before ? 'update' : 'create', entity: 'lab', entityId: '1', before, after: settings });
       })();
-      return Promise.resolve(lab());
+      return lab();
     },
 
     listMeters() {
-      return Promise.resolve(registerRows(db).map(registerRow));
+      return registerRows(db).map(registerRow);
     },
 
     getMeter(assetId) {
@@ -449,7 +457,7 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
       const row = registerRows(db).find((r) => r.assetId === rec.meter.assetId);
       if (!row) throw new LabError('internal', `register row missing for ${rec.meter.assetId}`);
       const detail: MeterDetail = { meter: rec.meter, register: registerRow(row), checks: listCheckSummaries(db, rec.id) };
-      return Promise.resolve(detail);
+      return detail;
     },
 
     createMeter(input) {
@@ -526,7 +534,7 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
         insertMeter(db, meter, at);
         appendAudit(db, { at, actor, action: 'create', entity: 'meter', entityId: meter.assetId, before: undefined, after: meter });
       })();
-      return Promise.resolve(meterOr404(meter.assetId).meter);
+      return meterOr404(meter.assetId).meter;
     },
 
     listDue(query) {
@@ -538,11 +546,11 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
         .map(registerRow)
         .filter((r) => r.state !== 'withdrawn' && (r.daysToDue === null || r.daysToDue <= within))
         .sort((a, b) => (a.daysToDue ?? -Infinity) - (b.daysToDue ?? -Infinity));
-      return Promise.resolve(rows);
+      return rows;
     },
 
     listStandards() {
-      return Promise.resolve(listStandards(db).map(toStandard));
+      return listStandards(db).map(toStandard);
     },
 
     createStandard(input) {
@@ -565,11 +573,11 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
       })();
       const rec = getStandardByAsset(db, s.assetId);
       if (!rec) throw new LabError('internal', 'standard not found after writing it');
-      return Promise.resolve(toStandard(rec));
+      return toStandard(rec);
     },
 
     listPeople() {
-      return Promise.resolve(listPeople(db));
+      return listPeople(db);
     },
 
     createPerson(input) {
@@ -581,7 +589,7 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
         person = insertPerson(db, p, at);
         appendAudit(db, { at, actor, action: 'create', entity: 'person', entityId: String(person.id), before: undefined, after: p });
       })();
-      return Promise.resolve(person as Person);
+      return person as Person;
     },
 
     recordCheck(input) {
@@ -592,7 +600,7 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
       })();
       const rec = getCheck(db, checkId);
       if (!rec) throw new LabError('internal', 'check not found after writing it');
-      return Promise.resolve(rec);
+      return rec;
     },
 
     getCheck(checkId) {
@@ -600,7 +608,7 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
       if (!Number.isInteger(id) || id < 1) throw LabError.field('checkId', checkId, 'a check number such as 12');
       const rec = getCheck(db, id);
       if (!rec) throw new LabError('not-found', `no check ${id} in this lab`);
-      return Promise.resolve(rec);
+      return rec;
     },
 
     evaluateBudget(input) {
@@ -637,7 +645,7 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
         doc.decisionRule ?? settings.decisionRule,
       );
       issues.throwIfAny();
-      return Promise.resolve(result as PointResult);
+      return result as PointResult;
     },
 
     airRefractivity(input) {
@@ -652,7 +660,7 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
         shiftPpm: ((1 + referenceN * 1e-6) / (1 + n * 1e-6) - 1) * 1e6,
         referenceN,
       };
-      return Promise.resolve(result);
+      return result;
     },
 
     importCsv(csvText) {
@@ -667,7 +675,7 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
           result.pointsImported += p.points.length;
         }
       })();
-      return Promise.resolve(result);
+      return result;
     },
 
     exportCsv() {
@@ -704,7 +712,7 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
           });
         }
       }
-      return Promise.resolve(stringifyCsv(rows, { record_delimiter: '\r\n' }));
+      return stringifyCsv(rows, { record_delimiter: '\r\n' });
     },
   };
 
@@ -721,7 +729,26 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
     }
   }
 
-  return api;
+  return asyncApi(api);
+}
+
+/** The service is written synchronously (better-sqlite3 is synchronous); callers get the
+ * async contract, and a refusal always arrives as a rejected promise, never a throw. */
+type SyncLabApi = { [K in keyof LabApi]: (...args: Parameters<LabApi[K]>) => Awaited<ReturnType<LabApi[K]>> };
+
+function asyncApi(sync: SyncLabApi): LabApi {
+  const out: Record<string, (...args: unknown[]) => Promise<unknown>> = {};
+  for (const op of Object.keys(OPERATIONS) as OperationName[]) {
+    const fn = sync[op] as (...args: unknown[]) => unknown;
+    out[op] = (...args: unknown[]) => {
+      try {
+        return Promise.resolve(fn(...args));
+      } catch (e) {
+        return Promise.reject(e instanceof Error ? e : new Error(String(e)));
+      }
+    };
+  }
+  return out as unknown as LabApi;
 }
 
 /** Columns of the history CSV (RFC 4180), one row per reading. Documented in docs/exchange.md. */
