@@ -12,7 +12,7 @@ export interface SampleBundle {
   lab: LabSettingsInput;
   people: PersonInput[];
   standards: StandardInput[];
-  meters: MeterInput[];
+  meters: (MeterInput & { stateReason?: string })[];
   checks: CheckDocumentInput[];
 }
 
@@ -26,8 +26,15 @@ export async function loadBundle(api: LabApi, bundle: SampleBundle): Promise<voi
   await api.updateLab(bundle.lab);
   for (const p of bundle.people) await api.createPerson(p);
   for (const s of bundle.standards) await api.createStandard(s);
-  for (const m of bundle.meters) await api.createMeter(m);
+  // History is recorded while every meter is in service; the present states come last, as
+  // they did in the story (a meter is withdrawn after its last check, not before).
+  for (const m of bundle.meters) await api.createMeter({ ...m, state: 'in-service' });
   for (const c of bundle.checks) await api.recordCheck(c);
+  for (const m of bundle.meters) {
+    if (m.state && m.state !== 'in-service') {
+      await api.changeMeterState({ assetId: m.assetId, state: m.state, reason: m.stateReason ?? 'state in the demo story' });
+    }
+  }
 }
 
 /** Creates `file` (refusing to overwrite one) with default settings or the demo lab. */

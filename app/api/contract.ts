@@ -18,6 +18,7 @@ import type {
   CheckDocumentInput,
   BudgetDocumentInput,
   MeterInput,
+  MeterStateInput,
   StandardInput,
   PersonInput,
   LabSettingsInput,
@@ -187,6 +188,8 @@ export interface LabApi {
   listMeters(): Promise<RegisterRow[]>;
   getMeter(assetId: string): Promise<MeterDetail>;
   createMeter(input: MeterInput): Promise<Meter>;
+  /** Quarantine, withdraw or return to service; always with a reason, always audited. */
+  changeMeterState(input: MeterStateInput): Promise<Meter>;
   listDue(query: DueQuery): Promise<RegisterRow[]>;
 
   listStandards(): Promise<Standard[]>;
@@ -215,6 +218,7 @@ export const OPERATIONS = {
   listMeters: 'read',
   getMeter: 'read',
   createMeter: 'write',
+  changeMeterState: 'write',
   listDue: 'read',
   listStandards: 'read',
   createStandard: 'write',

@@ -74,6 +74,13 @@ export const MeterSchema = z.object({
 });
 export type MeterInput = z.input<typeof MeterSchema>;
 
+export const MeterStateSchema = z.object({
+  assetId: nonEmpty('the meter asset id'),
+  state: z.enum(['in-service', 'quarantined', 'withdrawn'], 'expected in-service, quarantined or withdrawn'),
+  reason: nonEmpty('the reason for the change').pipe(z.string().min(3, 'expected a reason of a few words')),
+});
+export type MeterStateInput = z.input<typeof MeterStateSchema>;
+
 export const StandardCertificateSchema = z.object({
   certificateId: nonEmpty('the certificate number'),
   issuedBy: nonEmpty('the issuing body'),

@@ -20,7 +20,7 @@ import type { LabDb } from '../../db/store';
 import { getLab, putLab } from '../../db/queries/lab';
 import { findPersonByName, insertPerson, listPeople } from '../../db/queries/people';
 import { getStandardByAsset, insertStandard, listStandards, type StandardRecord } from '../../db/queries/standards';
-import { getMeterByAsset, insertMeter, registerRows, type MeterRecord } from '../../db/queries/meters';
+import { getMeterByAsset, insertMeter, registerRows, setMeterState, type MeterRecord } from '../../db/queries/meters';
 import { allCheckIds, findCheckId, getCheck, insertCheck, listCheckSummaries } from '../../db/queries/checks';
 import { appendAudit } from '../../db/queries/audit';
 import type {
@@ -43,6 +43,7 @@ import {
   CheckDocumentSchema,
   LabSettingsSchema,
   MeterSchema,
+  MeterStateSchema,
   PersonSchema,
   StandardSchema,
   type CheckDocument,
@@ -170,7 +171,8 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
   }
 
   function registerRow(r: ReturnType<typeof registerRows>[number]): RegisterRow {
-    const dueDate = r.lastCheckDate ? addMonthsIso(r.lastCheckDate, r.intervalMonths) : null;
+    // A withdrawn meter is out of use: nothing falls due for it.
+    const dueDate = r.lastCheckDate && r.state !== 'withdrawn' ? addMonthsIso(r.lastCheckDate, r.intervalMonths) : null;
     return { ...r, dueDate, daysToDue: dueDate ? daysBetween(clock.today(), dueDate) : null };
   }
 
@@ -535,6 +537,27 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
         appendAudit(db, { at, actor, action: 'create', entity: 'meter', entityId: meter.assetId, before: undefined, after: meter });
       })();
       return meterOr404(meter.assetId).meter;
+    },
+
+    changeMeterState(input) {
+      const c = parseWith(MeterStateSchema, input);
+      const rec = meterOr404(c.assetId);
+      if (rec.meter.state === c.state) {
+        throw LabError.field('state', c.state, `a state other than the present one (${rec.meter.state})`, `state: ${c.assetId} is already ${c.state}`);
+      }
+      db.transaction(() => {
+        setMeterState(db, rec.id, c.state);
+        appendAudit(db, {
+          at: clock.now(),
+          actor,
+          action: 'change-state',
+          entity: 'meter',
+          entityId: c.assetId,
+          before: { state: rec.meter.state },
+          after: { state: c.state, reason: c.reason },
+        });
+      })();
+      return meterOr404(c.assetId).meter;
     },
 
     listDue(query) {

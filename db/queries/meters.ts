@@ -123,6 +123,11 @@ export function insertMeter(db: LabDb, m: Meter, createdAt: string): number {
   return id;
 }
 
+export function setMeterState(db: LabDb, meterId: number, state: Meter['state']): void {
+  const info = db.prepare('UPDATE meter SET state = ? WHERE id = ?').run(state, meterId);
+  if (info.changes !== 1) throw new Error(`meter ${meterId}: expected 1 row changed, got ${info.changes}`);
+}
+
 export interface RegisterDbRow {
   assetId: string;
   description: string;
