@@ -1,0 +1,105 @@
+// The uncertainty budget of one measurand: lines (contributions), their combination, the
+// Welch-Satterthwaite effective degrees of freedom, the coverage factor and the expanded uncertainty.
+// Source: JCGM 100:2008 (GUM): 4.2 (Type A: s/sqrt(n), nu = n - 1), 4.3.7 (rectangular: a/sqrt(3)),
+// 4.3.3 (from a certificate: U/k), 5.1.2 eq. (10) (law of propagation, uncorrelated inputs),
+// G.4.1 eq. (G.2b) (nu_eff), 6.2.1 (U = k u_c).
+
+import type { Budget, Contribution, Distribution } from './model';
+import { coverageFactor, DEFAULT_COVERAGE_PROBABILITY } from './distributions';
+
+export type ContributionKey = Contribution['key'];
+
+export interface ContributionInput {
+  key: ContributionKey;
+  label: string;
+  type: 'A' | 'B';
+  distribution: Distribution;
+  unit: string;
+  standardUncertainty: number;
+  sensitivity: number;
+  dof: number;
+}
+
+function requireFinite(value: number, what: string): void {
+  if (!Number.isFinite(value)) throw new Error(`${what} must be a finite number (got ${String(value)})`);
+}
+
+/** A budget line with contributionHz = |c| u filled in. */
+export function makeContribution(input: ContributionInput): Contribution {
+  requireFinite(input.standardUncertainty, `${input.key}: standard uncertainty`);
+  requireFinite(input.sensitivity, `${input.key}: sensitivity`);
+  if (input.standardUncertainty < 0) throw new Error(`${input.key}: standard uncertainty must not be negative`);
+  if (Number.isNaN(input.dof) || input.dof <= 0) throw new Error(`${input.key}: degrees of freedom must be positive (got ${input.dof})`);
+  return { ...input, contributionHz: Math.abs(input.sensitivity) * input.standardUncertainty };
+}
+
+interface LineIdentity {
+  key: ContributionKey;
+  label: string;
+  unit: string;
+  sensitivity: number;
+}
+
+/** Type A from n observations with experimental standard deviation s: u = s/sqrt(n), nu = n - 1. */
+export function typeA(line: LineIdentity, standardDeviation: number, count: number): Contribution {
+  if (!Number.isInteger(count) || count < 2) throw new Error(`${line.key}: a Type A evaluation needs at least 2 observations (got ${count})`);
+  return makeContribution({
+    ...line,
+    type: 'A',
+    distribution: 't',
+    standardUncertainty: standardDeviation / Math.sqrt(count),
+    dof: count - 1,
+  });
+}
+
+/** Type B, rectangular of half-width a: u = a/sqrt(3), taken as exactly known (nu = Infinity). */
+export function rectangular(line: LineIdentity, halfWidth: number): Contribution {
+  requireFinite(halfWidth, `${line.key}: half-width`);
+  return makeContribution({
+    ...line,
+    type: 'B',
+    distribution: 'rectangular',
+    standardUncertainty: Math.abs(halfWidth) / Math.sqrt(3),
+    dof: Infinity,
+  });
+}
+
+/** Type B from a certificate's expanded uncertainty U with coverage factor k: u = U/k. */
+export function normalFromCertificate(line: LineIdentity, expandedUncertainty: number, k: number, dof = Infinity): Contribution {
+  requireFinite(expandedUncertainty, `${line.key}: expanded uncertainty`);
+  if (!(k > 0) || !Number.isFinite(k)) throw new Error(`${line.key}: coverage factor must be a positive number (got ${k})`);
+  return makeContribution({
+    ...line,
+    type: 'B',
+    distribution: 'normal',
+    standardUncertainty: Math.abs(expandedUncertainty) / k,
+    dof,
+  });
+}
+
+/**
+ * Combines uncorrelated lines: u_c = sqrt(sum (c_i u_i)^2); nu_eff = u_c^4 / sum((c_i u_i)^4 / nu_i)
+ * over lines with finite nu and a non-zero contribution (others add nothing to the sum);
+ * k from the t-distribution at (1 + p)/2 with nu_eff truncated; U = k u_c.
+ */
+export function combine(contributions: readonly Contribution[], coverageProbability: number = DEFAULT_COVERAGE_PROBABILITY): Budget {
+  let variance = 0;
+  let denominator = 0;
+  for (const line of contributions) {
+    requireFinite(line.contributionHz, `${line.key}: contribution`);
+    const ci = line.contributionHz;
+    variance += ci * ci;
+    if (ci > 0 && Number.isFinite(line.dof)) denominator += (ci * ci * ci * ci) / line.dof;
+  }
+  const combinedHz = Math.sqrt(variance);
+  const effectiveDof = denominator > 0 ? (variance * variance) / denominator : Infinity;
+  const k = coverageFactor(effectiveDof, coverageProbability);
+  return {
+    contributions: [...contributions],
+    combinedHz,
+    effectiveDof,
+    coverageFactor: k,
+    coverageProbability,
+    expandedHz: k * combinedHz,
+  };
+}
