@@ -3,7 +3,17 @@ import js from '@eslint/js';
 import tseslint from 'typescript-eslint';
 
 export default tseslint.config(
-  { ignores: ['node_modules/**', 'renderer/dist/**', 'bin/**', 'app/desktop/*.cjs', 'test-output/**'] },
+  {
+    ignores: [
+      'node_modules/**',
+      'renderer/dist/**',
+      'bin/**',
+      'app/desktop/*.cjs',
+      'test-output/**',
+      'tmp/**',
+      'eslint.config.js',
+    ],
+  },
   js.configs.recommended,
   ...tseslint.configs.recommendedTypeChecked,
   {
@@ -24,9 +34,18 @@ export default tseslint.config(
         'error',
         {
           patterns: [
-            { group: ['../*', '!./*'], message: 'app/engine must be independent: import only from app/engine itself.' },
-            { group: ['node:*', 'fs', 'path', 'os', 'child_process', 'crypto', 'http', 'net'], message: 'app/engine is pure: no I/O.' },
-            { group: ['electron', 'better-sqlite3', 'react', 'react-dom', 'pdfkit'], message: 'app/engine is pure: no platform libraries.' },
+            {
+              group: ['../*', '!./*'],
+              message: 'app/engine must be independent: import only from app/engine itself.',
+            },
+            {
+              group: ['node:*', 'fs', 'path', 'os', 'child_process', 'crypto', 'http', 'net'],
+              message: 'app/engine is pure: no I/O.',
+            },
+            {
+              group: ['electron', 'better-sqlite3', 'react', 'react-dom', 'pdfkit'],
+              message: 'app/engine is pure: no platform libraries.',
+            },
           ],
         },
       ],
@@ -36,7 +55,10 @@ export default tseslint.config(
         { name: 'fetch', message: 'app/engine is pure: no I/O.' },
         { name: 'process', message: 'app/engine is pure: no process access.' },
       ],
-      'no-restricted-properties': ['error', { object: 'Math', property: 'random', message: 'app/engine is deterministic.' }],
+      'no-restricted-properties': [
+        'error',
+        { object: 'Math', property: 'random', message: 'app/engine is deterministic.' },
+      ],
     },
   },
 );

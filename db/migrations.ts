@@ -19,6 +19,7 @@ function load(version: number, file: string): Migration {
 export const MIGRATIONS: readonly Migration[] = FILES.map(([v, f]) => load(v, f));
 
 export const LATEST_VERSION: number = MIGRATIONS.reduce((max, m) => {
-  if (m.version !== max + 1) throw new Error(`migrations must be numbered 1, 2, 3...: found ${m.version} after ${max}`);
+  if (m.version !== max + 1)
+    throw new Error(`migrations must be numbered 1, 2, 3...: found ${m.version} after ${max}`);
   return m.version;
 }, 0);

@@ -33,13 +33,18 @@ export function openLabDb(file: string, options: OpenOptions = {}): LabDb {
   if (!memory && !options.create && !existsSync(file)) {
     throw new StoreError('missing-file', `no lab file at ${file}: create one with "dipledger init"`);
   }
-  const db = new Database(file, { readonly: options.readonly ?? false, fileMustExist: !options.create && !memory });
+  const db = new Database(file, {
+    readonly: options.readonly ?? false,
+    fileMustExist: !options.create && !memory,
+  });
   try {
     db.pragma('busy_timeout = 5000');
     // Identity and version are checked before anything is set, so a refused file is untouched.
     const appId = db.pragma('application_id', { simple: true }) as number;
     const version = db.pragma('user_version', { simple: true }) as number;
-    const tables = (db.prepare("SELECT count(*) AS n FROM sqlite_master WHERE type = 'table'").get() as { n: number }).n;
+    const tables = (
+      db.prepare("SELECT count(*) AS n FROM sqlite_master WHERE type = 'table'").get() as { n: number }
+    ).n;
     if (appId !== APPLICATION_ID && (appId !== 0 || tables > 0)) {
       throw new StoreError('not-a-lab-file', `${file} is not a Dipledger lab file`);
     }
@@ -67,7 +72,11 @@ export function schemaVersion(db: Database.Database): number {
 }
 
 /** Applies every migration above the file's version up to `target`, each in its own transaction. */
-export function migrate(db: LabDb, target: number = LATEST_VERSION, migrations: readonly Migration[] = MIGRATIONS): void {
+export function migrate(
+  db: LabDb,
+  target: number = LATEST_VERSION,
+  migrations: readonly Migration[] = MIGRATIONS,
+): void {
   db.exec(`CREATE TABLE IF NOT EXISTS schema_migration (
     version INTEGER PRIMARY KEY, name TEXT NOT NULL, applied_at TEXT NOT NULL)`);
   const current = schemaVersion(db);

@@ -4,7 +4,13 @@ import { readFileSync, existsSync, rmSync } from 'node:fs';
 import type { LabApi } from '../app/api/contract';
 import { openApi } from '../app/api/open';
 import type { Clock } from '../app/api/service';
-import type { CheckDocumentInput, LabSettingsInput, MeterInput, PersonInput, StandardInput } from '../app/api/schemas';
+import type {
+  CheckDocumentInput,
+  LabSettingsInput,
+  MeterInput,
+  PersonInput,
+  StandardInput,
+} from '../app/api/schemas';
 import { LabError } from '../app/api/errors';
 
 export interface SampleBundle {
@@ -32,7 +38,11 @@ export async function loadBundle(api: LabApi, bundle: SampleBundle): Promise<voi
   for (const c of bundle.checks) await api.recordCheck(c);
   for (const m of bundle.meters) {
     if (m.state && m.state !== 'in-service') {
-      await api.changeMeterState({ assetId: m.assetId, state: m.state, reason: m.stateReason ?? 'state in the demo story' });
+      await api.changeMeterState({
+        assetId: m.assetId,
+        state: m.state,
+        reason: m.stateReason ?? 'state in the demo story',
+      });
     }
   }
 }

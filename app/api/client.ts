@@ -22,7 +22,10 @@ export function makeClient(call: CallFn): LabApi {
   return sameShape(client as DerivedClient);
 }
 
-type FetchFn = (input: string, init: { method: string; headers: Record<string, string>; body: string }) => Promise<{
+type FetchFn = (
+  input: string,
+  init: { method: string; headers: Record<string, string>; body: string },
+) => Promise<{
   status: number;
   text(): Promise<string>;
 }>;
@@ -42,7 +45,10 @@ export function httpClient(baseUrl: string, fetchFn: FetchFn = fetch): LabApi {
       status = res.status;
       text = await res.text();
     } catch (e) {
-      throw new LabError('internal', `cannot reach the lab service: ${e instanceof Error ? e.message : String(e)}`);
+      throw new LabError(
+        'internal',
+        `cannot reach the lab service: ${e instanceof Error ? e.message : String(e)}`,
+      );
     }
     let envelope: unknown;
     try {

@@ -231,4 +231,3 @@ export const OPERATIONS = {
   importCsv: 'write',
   exportCsv: 'read',
 } as const satisfies Record<OperationName, 'read' | 'write'>;
-

@@ -38,7 +38,12 @@ export class LabError extends Error {
 
   static field(field: string, value: unknown, expected: string, message?: string): LabError {
     return LabError.invalid([
-      { field, value, expected, message: message ?? `${field}: ${describe(value)} is not valid; expected ${expected}` },
+      {
+        field,
+        value,
+        expected,
+        message: message ?? `${field}: ${describe(value)} is not valid; expected ${expected}`,
+      },
     ]);
   }
 }
@@ -48,9 +53,9 @@ export function describe(value: unknown): string {
   if (value === undefined) return 'missing';
   let text: string;
   try {
-    text = typeof value === 'string' ? JSON.stringify(value) : (JSON.stringify(value) ?? String(value));
+    text = JSON.stringify(value) ?? typeof value;
   } catch {
-    text = String(value);
+    text = typeof value;
   }
   return text.length > 60 ? `${text.slice(0, 57)}...` : text;
 }

@@ -8,7 +8,10 @@ export interface OpenedLab {
   close(): void;
 }
 
-export function openApi(file: string, options: OpenOptions & { clock?: Clock; actor?: string } = {}): OpenedLab {
+export function openApi(
+  file: string,
+  options: OpenOptions & { clock?: Clock; actor?: string } = {},
+): OpenedLab {
   const db = openLabDb(file, options);
   const api = createLabService(db, { clock: options.clock, actor: options.actor });
   return { api, close: () => db.close() };

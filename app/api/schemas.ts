@@ -5,7 +5,8 @@ import { z } from 'zod';
 
 const isoDate = z.iso.date('expected a date as YYYY-MM-DD');
 const nonEmpty = (what: string) => z.string(`expected ${what}`).trim().min(1, `expected ${what}, not empty`);
-const finite = (what: string) => z.number(`expected ${what} as a number`).refine(Number.isFinite, `expected ${what} as a finite number`);
+const finite = (what: string) =>
+  z.number(`expected ${what} as a number`).refine(Number.isFinite, `expected ${what} as a finite number`);
 
 /** A frequency as typed: '9.3 GHz', '9300MHz', '9.3e9 Hz', or a number in Hz. Parsed in the service. */
 export const FrequencyText = z.union([z.string(), z.number()], 'expected a frequency such as "9.3 GHz"');
@@ -14,8 +15,14 @@ export const DecisionRuleSchema = z.discriminatedUnion(
   'kind',
   [
     z.object({ kind: z.literal('simple') }),
-    z.object({ kind: z.literal('guarded'), multipleOfU: finite('multiple of U').pipe(z.number().min(0).max(3)) }),
-    z.object({ kind: z.literal('guarded-fixed'), guardBandPpm: finite('guard band in ppm').pipe(z.number().min(0)) }),
+    z.object({
+      kind: z.literal('guarded'),
+      multipleOfU: finite('multiple of U').pipe(z.number().min(0).max(3)),
+    }),
+    z.object({
+      kind: z.literal('guarded-fixed'),
+      guardBandPpm: finite('guard band in ppm').pipe(z.number().min(0)),
+    }),
     z.object({ kind: z.literal('non-binary') }),
   ],
   'expected a decision rule: simple, guarded, guarded-fixed or non-binary',
@@ -29,7 +36,9 @@ export const LabSettingsSchema = z.object({
   reliabilityTarget: finite('reliability target').pipe(z.number().gt(0.5).lt(1)).default(0.95),
   intervalMinMonths: z.int('expected whole months').min(1).max(120).default(6),
   intervalMaxMonths: z.int('expected whole months').min(1).max(240).default(60),
-  defaultTemperatureUncertaintyC: finite('temperature uncertainty').pipe(z.number().min(0).max(10)).default(0.3),
+  defaultTemperatureUncertaintyC: finite('temperature uncertainty')
+    .pipe(z.number().min(0).max(10))
+    .default(0.3),
   defaultPressureUncertaintyHpa: finite('pressure uncertainty').pipe(z.number().min(0).max(50)).default(1),
   defaultHumidityUncertaintyPct: finite('humidity uncertainty').pipe(z.number().min(0).max(50)).default(5),
   printSuggestedInterval: z.boolean().default(false),
@@ -55,7 +64,9 @@ export const MeterSchema = z.object({
   resolution: z.union([z.string(), z.number()]),
   chart: z.array(ChartPointSchema).default([]),
   alphaPerK: finite('expansion coefficient in 1/K').pipe(z.number().min(-1e-4).max(1e-4)),
-  alphaUncertaintyPerK: finite('uncertainty of the expansion coefficient').pipe(z.number().min(0)).default(1e-6),
+  alphaUncertaintyPerK: finite('uncertainty of the expansion coefficient')
+    .pipe(z.number().min(0))
+    .default(1e-6),
   reference: z
     .object({
       temperatureC: finite('reference temperature').pipe(z.number().min(-20).max(60)),
@@ -112,11 +123,17 @@ export const ReadingSchema = z.object({
 });
 
 export const ConditionsSchema = z.object({
-  temperatureC: finite('temperature in degC').pipe(z.number().min(0, 'expected 0 to 50 degC').max(50, 'expected 0 to 50 degC')),
+  temperatureC: finite('temperature in degC').pipe(
+    z.number().min(0, 'expected 0 to 50 degC').max(50, 'expected 0 to 50 degC'),
+  ),
   temperatureUncertaintyC: finite('temperature uncertainty').pipe(z.number().min(0).max(10)).optional(),
-  pressureHpa: finite('pressure in hPa').pipe(z.number().min(500, 'expected 500 to 1100 hPa').max(1100, 'expected 500 to 1100 hPa')),
+  pressureHpa: finite('pressure in hPa').pipe(
+    z.number().min(500, 'expected 500 to 1100 hPa').max(1100, 'expected 500 to 1100 hPa'),
+  ),
   pressureUncertaintyHpa: finite('pressure uncertainty').pipe(z.number().min(0).max(50)).optional(),
-  humidityPct: finite('relative humidity in %').pipe(z.number().min(0, 'expected 0 to 100 %').max(100, 'expected 0 to 100 %')),
+  humidityPct: finite('relative humidity in %').pipe(
+    z.number().min(0, 'expected 0 to 100 %').max(100, 'expected 0 to 100 %'),
+  ),
   humidityUncertaintyPct: finite('humidity uncertainty').pipe(z.number().min(0).max(50)).optional(),
 });
 

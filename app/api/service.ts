@@ -19,8 +19,19 @@ import type { Conditions, DecisionRule, MeterSpec, PointResult, Reading, Verdict
 import type { LabDb } from '../../db/store';
 import { getLab, putLab } from '../../db/queries/lab';
 import { findPersonByName, insertPerson, listPeople } from '../../db/queries/people';
-import { getStandardByAsset, insertStandard, listStandards, type StandardRecord } from '../../db/queries/standards';
-import { getMeterByAsset, insertMeter, registerRows, setMeterState, type MeterRecord } from '../../db/queries/meters';
+import {
+  getStandardByAsset,
+  insertStandard,
+  listStandards,
+  type StandardRecord,
+} from '../../db/queries/standards';
+import {
+  getMeterByAsset,
+  insertMeter,
+  registerRows,
+  setMeterState,
+  type MeterRecord,
+} from '../../db/queries/meters';
 import { allCheckIds, findCheckId, getCheck, insertCheck, listCheckSummaries } from '../../db/queries/checks';
 import { appendAudit } from '../../db/queries/audit';
 import type {
@@ -109,7 +120,12 @@ function specOf(m: Meter): MeterSpec {
 class Issues {
   readonly list: FieldIssue[] = [];
   add(field: string, value: unknown, expected: string, message?: string): void {
-    this.list.push({ field, value, expected, message: message ?? `${field}: ${describe(value)}: ${expected}` });
+    this.list.push({
+      field,
+      value,
+      expected,
+      message: message ?? `${field}: ${describe(value)}: ${expected}`,
+    });
   }
   fromParse(field: string, value: unknown, message: string, expected: string): void {
     this.list.push({ field, value, expected, message });
@@ -160,7 +176,8 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
 
   function lab(): LabSettings {
     const settings = getLab(db);
-    if (!settings) throw new LabError('refused', 'this lab file has no lab settings yet: run "dipledger init"');
+    if (!settings)
+      throw new LabError('refused', 'this lab file has no lab settings yet: run "dipledger init"');
     return settings;
   }
 
@@ -172,11 +189,15 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
 
   function registerRow(r: ReturnType<typeof registerRows>[number]): RegisterRow {
     // A withdrawn meter is out of use: nothing falls due for it.
-    const dueDate = r.lastCheckDate && r.state !== 'withdrawn' ? addMonthsIso(r.lastCheckDate, r.intervalMonths) : null;
+    const dueDate =
+      r.lastCheckDate && r.state !== 'withdrawn' ? addMonthsIso(r.lastCheckDate, r.intervalMonths) : null;
     return { ...r, dueDate, daysToDue: dueDate ? daysBetween(clock.today(), dueDate) : null };
   }
 
-  function certificateOn(s: StandardRecord, date: string): StandardRecord['certificates'][number] | undefined {
+  function certificateOn(
+    s: StandardRecord,
+    date: string,
+  ): StandardRecord['certificates'][number] | undefined {
     return s.certificates.find((c) => c.calibratedOn <= date && date <= c.dueOn);
   }
 
@@ -193,7 +214,12 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
   }
 
   /** Parses one reading in dial units: Hz for direct-reading meters, divisions otherwise. */
-  function readingValue(issues: Issues, meter: Meter, value: string | number, field: string): number | undefined {
+  function readingValue(
+    issues: Issues,
+    meter: Meter,
+    value: string | number,
+    field: string,
+  ): number | undefined {
     if (meter.dialKind === 'direct') {
       const hz = frequencyOrIssue(issues, value, field);
       if (hz === undefined) return undefined;
@@ -271,13 +297,22 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
         rule,
       );
     } catch (e) {
-      issues.fromParse(field, undefined, `${field}: ${e instanceof Error ? e.message : String(e)}`, 'readings that can be judged');
+      issues.fromParse(
+        field,
+        undefined,
+        `${field}: ${e instanceof Error ? e.message : String(e)}`,
+        'readings that can be judged',
+      );
       return undefined;
     }
   }
 
   /** Validates a check document against the records and computes every point. Writes nothing. */
-  function prepareCheck(input: unknown, prefix: string, options: { createPerformer: boolean }): PreparedCheck {
+  function prepareCheck(
+    input: unknown,
+    prefix: string,
+    options: { createPerformer: boolean },
+  ): PreparedCheck {
     const doc = parseWith(CheckDocumentSchema, input, prefix);
     const settings = lab();
     const issues = new Issues();
@@ -285,16 +320,31 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
 
     const meter = getMeterByAsset(db, doc.meter);
     if (!meter) {
-      issues.add(f('meter'), doc.meter, 'the asset id of a meter in this lab', `${f('meter')}: no meter ${describe(doc.meter)} in this lab`);
+      issues.add(
+        f('meter'),
+        doc.meter,
+        'the asset id of a meter in this lab',
+        `${f('meter')}: no meter ${describe(doc.meter)} in this lab`,
+      );
       issues.throwIfAny();
       throw new Error('unreachable');
     }
     if (meter.meter.state === 'withdrawn') {
-      issues.add(f('meter'), doc.meter, 'a meter that is not withdrawn', `${f('meter')}: ${doc.meter} is withdrawn; return it to service first`);
+      issues.add(
+        f('meter'),
+        doc.meter,
+        'a meter that is not withdrawn',
+        `${f('meter')}: ${doc.meter} is withdrawn; return it to service first`,
+      );
     }
     const today = clock.today();
     if (doc.date > today) {
-      issues.add(f('date'), doc.date, `a date on or before today (${today})`, `${f('date')}: ${doc.date} is in the future (today is ${today})`);
+      issues.add(
+        f('date'),
+        doc.date,
+        `a date on or before today (${today})`,
+        `${f('date')}: ${doc.date} is in the future (today is ${today})`,
+      );
     }
     const performer = findPersonByName(db, doc.performer);
     if (!performer && !options.createPerformer) {
@@ -312,7 +362,12 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
       const field = f(`standards[${i}]`);
       const s = getStandardByAsset(db, assetId);
       if (!s) {
-        issues.add(field, assetId, 'the asset id of a lab standard', `${field}: no lab standard ${describe(assetId)} in this lab`);
+        issues.add(
+          field,
+          assetId,
+          'the asset id of a lab standard',
+          `${field}: no lab standard ${describe(assetId)} in this lab`,
+        );
         return;
       }
       const cert = certificateOn(s, doc.date);
@@ -323,7 +378,9 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
           assetId,
           'a standard whose calibration was valid on the check date',
           `${field}: ${assetId} had no valid calibration on ${doc.date}` +
-            (newest ? ` (newest certificate ${newest.certificateId}, ${newest.calibratedOn} to ${newest.dueOn})` : ''),
+            (newest
+              ? ` (newest certificate ${newest.certificateId}, ${newest.calibratedOn} to ${newest.dueOn})`
+              : ''),
         );
         return;
       }
@@ -338,20 +395,46 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
       const referenceHz = frequencyOrIssue(issues, p.reference, `${pf}.reference`);
       if (referenceHz !== undefined) {
         const out = checkInBand(referenceHz, m.minHz, m.maxHz, `${pf}.reference`);
-        if (out) issues.fromParse(`${pf}.reference`, p.reference, out, `a frequency inside the band of ${m.assetId}`);
+        if (out)
+          issues.fromParse(
+            `${pf}.reference`,
+            p.reference,
+            out,
+            `a frequency inside the band of ${m.assetId}`,
+          );
       }
       const stdAsset = p.standard ?? doc.standards[0];
       const std = standards.find((s) => s.record.assetId === stdAsset);
       if (p.standard !== undefined && !doc.standards.includes(p.standard)) {
-        issues.add(`${pf}.standard`, p.standard, 'one of the standards listed for this check', `${pf}.standard: ${describe(p.standard)} is not listed in standards`);
+        issues.add(
+          `${pf}.standard`,
+          p.standard,
+          'one of the standards listed for this check',
+          `${pf}.standard: ${describe(p.standard)} is not listed in standards`,
+        );
       }
       const readings: Reading[] = [];
       p.readings.forEach((r, j) => {
         const v = readingValue(issues, m, r.value, `${pf}.readings[${j}].value`);
         if (v !== undefined) readings.push({ value: v, direction: r.direction });
       });
-      if (referenceHz === undefined || !std || readings.length !== p.readings.length || issues.list.length > 0) return;
-      const result = evaluateOrIssue(issues, pf, m, conditions, referenceHz, std.certificate, readings, settings.decisionRule);
+      if (
+        referenceHz === undefined ||
+        !std ||
+        readings.length !== p.readings.length ||
+        issues.list.length > 0
+      )
+        return;
+      const result = evaluateOrIssue(
+        issues,
+        pf,
+        m,
+        conditions,
+        referenceHz,
+        std.certificate,
+        readings,
+        settings.decisionRule,
+      );
       if (!result) return;
       points.push({
         phase: p.phase,
@@ -366,14 +449,29 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
 
     const asLeftPoints = doc.points.filter((p) => p.phase === 'as-left').length;
     if (doc.adjusted && asLeftPoints === 0) {
-      issues.add(f('adjusted'), true, 'as-left points after an adjustment', `${f('adjusted')}: the meter was adjusted but no point is marked "as-left"`);
+      issues.add(
+        f('adjusted'),
+        true,
+        'as-left points after an adjustment',
+        `${f('adjusted')}: the meter was adjusted but no point is marked "as-left"`,
+      );
     }
     if (!doc.adjusted && asLeftPoints > 0) {
-      issues.add(f('adjusted'), false, 'adjusted: true when as-left points are given', `${f('adjusted')}: as-left points are given but adjusted is false`);
+      issues.add(
+        f('adjusted'),
+        false,
+        'adjusted: true when as-left points are given',
+        `${f('adjusted')}: as-left points are given but adjusted is false`,
+      );
     }
     const dup = findCheckId(db, meter.id, doc.date);
     if (dup !== undefined) {
-      issues.add(f('date'), doc.date, 'one check per meter and date', `${f('date')}: a check of ${m.assetId} on ${doc.date} is already recorded (check ${dup}); amend it instead`);
+      issues.add(
+        f('date'),
+        doc.date,
+        'one check per meter and date',
+        `${f('date')}: a check of ${m.assetId} on ${doc.date} is already recorded (check ${dup}); amend it instead`,
+      );
     }
     issues.throwIfAny();
 
@@ -384,7 +482,17 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
     const worstUsedFraction = left.length
       ? Math.max(...left.map((p) => Math.abs(p.result.errorHz) / p.result.decision.toleranceHz))
       : null;
-    return { doc, meter, performer, conditions, standards, points, asFoundVerdict, asLeftVerdict, worstUsedFraction };
+    return {
+      doc,
+      meter,
+      performer,
+      conditions,
+      standards,
+      points,
+      asFoundVerdict,
+      asLeftVerdict,
+      worstUsedFraction,
+    };
   }
 
   function writeCheck(c: PreparedCheck, action: string): number {
@@ -427,7 +535,12 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
       entity: 'check',
       entityId: String(checkId),
       before: undefined,
-      after: { meter: c.meter.meter.assetId, date: c.doc.date, asFound: c.asFoundVerdict, asLeft: c.asLeftVerdict },
+      after: {
+        meter: c.meter.meter.assetId,
+        date: c.doc.date,
+        asFound: c.asFoundVerdict,
+        asLeft: c.asLeftVerdict,
+      },
     });
     return checkId;
   }
@@ -440,12 +553,24 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
     updateLab(input) {
       const settings = parseWith(LabSettingsSchema, input);
       if (settings.intervalMinMonths > settings.intervalMaxMonths) {
-        throw LabError.field('intervalMinMonths', settings.intervalMinMonths, `at most intervalMaxMonths (${settings.intervalMaxMonths})`);
+        throw LabError.field(
+          'intervalMinMonths',
+          settings.intervalMinMonths,
+          `at most intervalMaxMonths (${settings.intervalMaxMonths})`,
+        );
       }
       const before = getLab(db);
       db.transaction(() => {
         putLab(db, settings);
-        appendAudit(db, { at: clock.now(), actor, action: before ? 'update' : 'create', entity: 'lab', entityId: '1', before, after: settings });
+        appendAudit(db, {
+          at: clock.now(),
+          actor,
+          action: before ? 'update' : 'create',
+          entity: 'lab',
+          entityId: '1',
+          before,
+          after: settings,
+        });
       })();
       return lab();
     },
@@ -458,7 +583,11 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
       const rec = meterOr404(String(assetId));
       const row = registerRows(db).find((r) => r.assetId === rec.meter.assetId);
       if (!row) throw new LabError('internal', `register row missing for ${rec.meter.assetId}`);
-      const detail: MeterDetail = { meter: rec.meter, register: registerRow(row), checks: listCheckSummaries(db, rec.id) };
+      const detail: MeterDetail = {
+        meter: rec.meter,
+        register: registerRow(row),
+        checks: listCheckSummaries(db, rec.id),
+      };
       return detail;
     },
 
@@ -480,7 +609,12 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
         const r = parseFrequencyHz(m.resolution, 'resolution');
         // A resolution is small (kHz to MHz), so a bare number is always ambiguous here.
         if (r.ok && typeof m.resolution === 'string' && /[a-z]/i.test(m.resolution)) resolution = r.hz;
-        else issues.add('resolution', m.resolution, 'the dial resolution as a frequency with unit, such as "1 MHz"');
+        else
+          issues.add(
+            'resolution',
+            m.resolution,
+            'the dial resolution as a frequency with unit, such as "1 MHz"',
+          );
       } else {
         const d = parseDivisions(m.resolution, 'resolution');
         if (d.ok && d.divisions > 0) resolution = d.divisions;
@@ -491,11 +625,17 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
         frequencyHz: frequencyOrIssue(issues, c.frequency, `chart[${i}].frequency`) ?? NaN,
       }));
       if (m.dialKind === 'divisions') {
-        if (chart.length < 2) issues.add('chart', m.chart, 'a chart of at least two points for a divisions meter');
+        if (chart.length < 2)
+          issues.add('chart', m.chart, 'a chart of at least two points for a divisions meter');
         const sorted = [...chart].sort((a, b) => a.divisions - b.divisions);
-        const up = sorted.every((c, i) => i === 0 || c.frequencyHz > (sorted[i - 1]?.frequencyHz ?? -Infinity));
-        const down = sorted.every((c, i) => i === 0 || c.frequencyHz < (sorted[i - 1]?.frequencyHz ?? Infinity));
-        if (chart.length >= 2 && !up && !down) issues.add('chart', m.chart, 'a chart whose frequency rises or falls steadily with divisions');
+        const up = sorted.every(
+          (c, i) => i === 0 || c.frequencyHz > (sorted[i - 1]?.frequencyHz ?? -Infinity),
+        );
+        const down = sorted.every(
+          (c, i) => i === 0 || c.frequencyHz < (sorted[i - 1]?.frequencyHz ?? Infinity),
+        );
+        if (chart.length >= 2 && !up && !down)
+          issues.add('chart', m.chart, 'a chart whose frequency rises or falls steadily with divisions');
       }
       const planHz: number[] = [];
       m.plan.forEach((p, i) => {
@@ -505,7 +645,13 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
         if (out) issues.fromParse(`plan[${i}]`, p, out, 'a frequency inside the band');
         else planHz.push(hz);
       });
-      if (getMeterByAsset(db, m.assetId)) issues.add('assetId', m.assetId, 'an asset id not already in the register', `assetId: ${m.assetId} is already in the register`);
+      if (getMeterByAsset(db, m.assetId))
+        issues.add(
+          'assetId',
+          m.assetId,
+          'an asset id not already in the register',
+          `assetId: ${m.assetId} is already in the register`,
+        );
       issues.throwIfAny();
       const meter: Meter = {
         assetId: m.assetId,
@@ -534,7 +680,15 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
       db.transaction(() => {
         const at = clock.now();
         insertMeter(db, meter, at);
-        appendAudit(db, { at, actor, action: 'create', entity: 'meter', entityId: meter.assetId, before: undefined, after: meter });
+        appendAudit(db, {
+          at,
+          actor,
+          action: 'create',
+          entity: 'meter',
+          entityId: meter.assetId,
+          before: undefined,
+          after: meter,
+        });
       })();
       return meterOr404(meter.assetId).meter;
     },
@@ -543,7 +697,12 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
       const c = parseWith(MeterStateSchema, input);
       const rec = meterOr404(c.assetId);
       if (rec.meter.state === c.state) {
-        throw LabError.field('state', c.state, `a state other than the present one (${rec.meter.state})`, `state: ${c.assetId} is already ${c.state}`);
+        throw LabError.field(
+          'state',
+          c.state,
+          `a state other than the present one (${rec.meter.state})`,
+          `state: ${c.assetId} is already ${c.state}`,
+        );
       }
       db.transaction(() => {
         setMeterState(db, rec.id, c.state);
@@ -580,19 +739,35 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
       const s = parseWith(StandardSchema, input);
       const issues = new Issues();
       s.certificates.forEach((c, i) => {
-        if (c.dueOn <= c.calibratedOn) issues.add(`certificates[${i}].dueOn`, c.dueOn, `a date after calibratedOn (${c.calibratedOn})`);
+        if (c.dueOn <= c.calibratedOn)
+          issues.add(`certificates[${i}].dueOn`, c.dueOn, `a date after calibratedOn (${c.calibratedOn})`);
       });
-      if (getStandardByAsset(db, s.assetId)) issues.add('assetId', s.assetId, 'an asset id not already used', `assetId: ${s.assetId} is already a lab standard`);
+      if (getStandardByAsset(db, s.assetId))
+        issues.add(
+          'assetId',
+          s.assetId,
+          'an asset id not already used',
+          `assetId: ${s.assetId} is already a lab standard`,
+        );
       const ids = new Set<string>();
       s.certificates.forEach((c, i) => {
-        if (ids.has(c.certificateId)) issues.add(`certificates[${i}].certificateId`, c.certificateId, 'certificate numbers that differ');
+        if (ids.has(c.certificateId))
+          issues.add(`certificates[${i}].certificateId`, c.certificateId, 'certificate numbers that differ');
         ids.add(c.certificateId);
       });
       issues.throwIfAny();
       db.transaction(() => {
         const at = clock.now();
         insertStandard(db, s, at);
-        appendAudit(db, { at, actor, action: 'create', entity: 'standard', entityId: s.assetId, before: undefined, after: s });
+        appendAudit(db, {
+          at,
+          actor,
+          action: 'create',
+          entity: 'standard',
+          entityId: s.assetId,
+          before: undefined,
+          after: s,
+        });
       })();
       const rec = getStandardByAsset(db, s.assetId);
       if (!rec) throw new LabError('internal', 'standard not found after writing it');
@@ -605,12 +780,26 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
 
     createPerson(input) {
       const p = parseWith(PersonSchema, input);
-      if (findPersonByName(db, p.name)) throw LabError.field('name', p.name, 'a name not already in the lab', `name: ${p.name} is already one of the lab's people`);
+      if (findPersonByName(db, p.name))
+        throw LabError.field(
+          'name',
+          p.name,
+          'a name not already in the lab',
+          `name: ${p.name} is already one of the lab's people`,
+        );
       let person: Person | undefined;
       db.transaction(() => {
         const at = clock.now();
         person = insertPerson(db, p, at);
-        appendAudit(db, { at, actor, action: 'create', entity: 'person', entityId: String(person.id), before: undefined, after: p });
+        appendAudit(db, {
+          at,
+          actor,
+          action: 'create',
+          entity: 'person',
+          entityId: String(person.id),
+          before: undefined,
+          after: p,
+        });
       })();
       return person as Person;
     },
@@ -628,7 +817,8 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
 
     getCheck(checkId) {
       const id = Number(checkId);
-      if (!Number.isInteger(id) || id < 1) throw LabError.field('checkId', checkId, 'a check number such as 12');
+      if (!Number.isInteger(id) || id < 1)
+        throw LabError.field('checkId', checkId, 'a check number such as 12');
       const rec = getCheck(db, id);
       if (!rec) throw new LabError('not-found', `no check ${id} in this lab`);
       return rec;
@@ -639,17 +829,31 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
       const settings = lab();
       const issues = new Issues();
       const meter = getMeterByAsset(db, doc.meter);
-      if (!meter) issues.add('meter', doc.meter, 'the asset id of a meter in this lab', `meter: no meter ${describe(doc.meter)} in this lab`);
+      if (!meter)
+        issues.add(
+          'meter',
+          doc.meter,
+          'the asset id of a meter in this lab',
+          `meter: no meter ${describe(doc.meter)} in this lab`,
+        );
       const std = getStandardByAsset(db, doc.standard);
-      if (!std) issues.add('standard', doc.standard, 'the asset id of a lab standard', `standard: no lab standard ${describe(doc.standard)} in this lab`);
+      if (!std)
+        issues.add(
+          'standard',
+          doc.standard,
+          'the asset id of a lab standard',
+          `standard: no lab standard ${describe(doc.standard)} in this lab`,
+        );
       issues.throwIfAny();
       const m = (meter as MeterRecord).meter;
-      const cert = certificateOn(std as StandardRecord, clock.today()) ?? (std as StandardRecord).certificates[0];
+      const cert =
+        certificateOn(std as StandardRecord, clock.today()) ?? (std as StandardRecord).certificates[0];
       if (!cert) throw LabError.field('standard', doc.standard, 'a standard with a certificate');
       const referenceHz = frequencyOrIssue(issues, doc.reference, 'reference');
       if (referenceHz !== undefined) {
         const out = checkInBand(referenceHz, m.minHz, m.maxHz, 'reference');
-        if (out) issues.fromParse('reference', doc.reference, out, `a frequency inside the band of ${m.assetId}`);
+        if (out)
+          issues.fromParse('reference', doc.reference, out, `a frequency inside the band of ${m.assetId}`);
       }
       const readings: Reading[] = [];
       doc.readings.forEach((r, j) => {
@@ -690,7 +894,11 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
       if (typeof csvText !== 'string') throw LabError.field('csv', csvText, 'the text of a CSV file');
       const docs = csvToDocuments(csvText);
       const prepared = docs.map((d) => prepareCheckAtLine(d));
-      const result: ImportResult = { metersSeen: new Set(docs.map((d) => d.doc.meter)).size, checksImported: 0, pointsImported: 0 };
+      const result: ImportResult = {
+        metersSeen: new Set(docs.map((d) => d.doc.meter)).size,
+        checksImported: 0,
+        pointsImported: 0,
+      };
       db.transaction(() => {
         for (const p of prepared) {
           writeCheck(p, 'import');
@@ -745,7 +953,11 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
       return prepareCheck(d.doc, '', { createPerformer: true });
     } catch (e) {
       if (e instanceof LabError) {
-        const issues = e.issues.map((i) => ({ ...i, field: `lines ${d.lines}: ${i.field}`, message: `lines ${d.lines}: ${i.message}` }));
+        const issues = e.issues.map((i) => ({
+          ...i,
+          field: `lines ${d.lines}: ${i.field}`,
+          message: `lines ${d.lines}: ${i.message}`,
+        }));
         throw new LabError(e.code, issues[0]?.message ?? `lines ${d.lines}: ${e.message}`, issues);
       }
       throw e;
@@ -802,22 +1014,42 @@ export const CSV_COLUMNS = [
 type CsvRow = Record<(typeof CSV_COLUMNS)[number], string>;
 
 /** Groups CSV rows into check documents (meter + date), each with its line range. */
-export function csvToDocuments(text: string): { doc: { meter: string } & Record<string, unknown>; lines: string }[] {
+export function csvToDocuments(
+  text: string,
+): { doc: { meter: string } & Record<string, unknown>; lines: string }[] {
   let records: { record: CsvRow; line: number }[];
   try {
-    const parsed = parseCsv(text, { columns: true, skip_empty_lines: true, trim: true, info: true, bom: true }) as {
-      record: CsvRow;
-      info: { lines: number };
-    }[];
+    const parsed = parseCsv<{ record: CsvRow; info: { lines: number } }>(text, {
+      columns: true,
+      skip_empty_lines: true,
+      trim: true,
+      info: true,
+      bom: true,
+    });
     records = parsed.map((p) => ({ record: p.record, line: p.info.lines }));
   } catch (e) {
-    throw LabError.field('csv', undefined, 'a CSV file (RFC 4180)', `csv: ${e instanceof Error ? e.message : String(e)}`);
+    throw LabError.field(
+      'csv',
+      undefined,
+      'a CSV file (RFC 4180)',
+      `csv: ${e instanceof Error ? e.message : String(e)}`,
+    );
   }
   const header = text.replace(/^\uFEFF/, '').split(/\r?\n/, 1)[0] ?? '';
   const cols = header.split(',').map((c) => c.trim().replace(/^"|"$/g, ''));
-  const missing = CSV_COLUMNS.filter((c) => !['remarks', 'dip_depth_db', 'method', 'u_temperature_c', 'u_pressure_hpa', 'u_humidity_pct'].includes(c) && !cols.includes(c));
+  const missing = CSV_COLUMNS.filter(
+    (c) =>
+      !['remarks', 'dip_depth_db', 'method', 'u_temperature_c', 'u_pressure_hpa', 'u_humidity_pct'].includes(
+        c,
+      ) && !cols.includes(c),
+  );
   if (missing.length) {
-    throw LabError.field('csv header', header, `the columns ${CSV_COLUMNS.join(', ')}`, `csv header: missing column(s) ${missing.join(', ')}`);
+    throw LabError.field(
+      'csv header',
+      header,
+      `the columns ${CSV_COLUMNS.join(', ')}`,
+      `csv header: missing column(s) ${missing.join(', ')}`,
+    );
   }
   const groups = new Map<string, { rows: typeof records }>();
   for (const r of records) {
@@ -837,7 +1069,16 @@ export function csvToDocuments(text: string): { doc: { meter: string } & Record<
     if (!first) continue;
     const f = first.record;
     const lines = `${first.line}-${g.rows[g.rows.length - 1]?.line ?? first.line}`;
-    const points = new Map<string, { phase: string; reference: string; standard: string; readings: { value: string | number; direction: string }[]; dipDepthDb?: number | string }>();
+    const points = new Map<
+      string,
+      {
+        phase: string;
+        reference: string;
+        standard: string;
+        readings: { value: string | number; direction: string }[];
+        dipDepthDb?: number | string;
+      }
+    >();
     for (const { record: r } of g.rows) {
       const key = r.point;
       const p = points.get(key) ?? {
@@ -847,7 +1088,10 @@ export function csvToDocuments(text: string): { doc: { meter: string } & Record<
         readings: [],
         ...(r.dip_depth_db ? { dipDepthDb: num(r.dip_depth_db) } : {}),
       };
-      p.readings.push({ value: r.reading_unit === 'Hz' ? `${r.reading} Hz` : (num(r.reading) ?? r.reading), direction: r.direction });
+      p.readings.push({
+        value: r.reading_unit === 'Hz' ? `${r.reading} Hz` : (num(r.reading) ?? r.reading),
+        direction: r.direction,
+      });
       points.set(key, p);
     }
     out.push({
@@ -857,7 +1101,10 @@ export function csvToDocuments(text: string): { doc: { meter: string } & Record<
         meter: f.meter,
         date: f.date,
         performer: f.performer,
-        standards: f.standards.split(';').map((s) => s.trim()).filter(Boolean),
+        standards: f.standards
+          .split(';')
+          .map((s) => s.trim())
+          .filter(Boolean),
         method: f.method || 'tune-to-dip',
         conditions: {
           temperatureC: num(f.temperature_c),

@@ -30,14 +30,22 @@ function failure(e: unknown): Envelope<never> {
 export async function dispatch(api: LabApi, op: unknown, args: unknown): Promise<Envelope> {
   if (!isOperationName(op)) {
     return failure(
-      LabError.field('operation', op, `one of: ${Object.keys(OPERATIONS).join(', ')}`, `unknown operation ${describeOp(op)}`),
+      LabError.field(
+        'operation',
+        op,
+        `one of: ${Object.keys(OPERATIONS).join(', ')}`,
+        `unknown operation ${describeOp(op)}`,
+      ),
     );
   }
   if (!Array.isArray(args)) {
-    return failure(LabError.field('args', args, 'an array of arguments', `${op}: arguments must be an array`));
+    return failure(
+      LabError.field('args', args, 'an array of arguments', `${op}: arguments must be an array`),
+    );
   }
   try {
-    const method = api[op] as unknown;
+    // Read without binding; apply(api, ...) below supplies `this`.
+    const method: unknown = Reflect.get(api, op);
     if (typeof method !== 'function') throw new LabError('internal', `${op} is not available in this build`);
     const value: unknown = await (method as (...a: unknown[]) => Promise<unknown>).apply(api, args);
     return { ok: true, value };
@@ -53,7 +61,12 @@ function describeOp(op: unknown): string {
 function isWireError(x: unknown): x is WireError {
   if (typeof x !== 'object' || x === null) return false;
   const w = x as Record<string, unknown>;
-  return typeof w.code === 'string' && CODES.has(w.code) && typeof w.message === 'string' && Array.isArray(w.issues);
+  return (
+    typeof w.code === 'string' &&
+    CODES.has(w.code) &&
+    typeof w.message === 'string' &&
+    Array.isArray(w.issues)
+  );
 }
 
 /** Turns an envelope back into its value, or throws the LabError it carries. */
@@ -83,7 +96,8 @@ export function decodeWire(text: string): unknown {
     if (typeof v === 'object' && v !== null && !Array.isArray(v)) {
       const keys = Object.keys(v);
       const tag = (v as Record<string, unknown>)[NONFINITE_TAG];
-      if (keys.length === 1 && (tag === 'Infinity' || tag === '-Infinity' || tag === 'NaN')) return Number(tag);
+      if (keys.length === 1 && (tag === 'Infinity' || tag === '-Infinity' || tag === 'NaN'))
+        return Number(tag);
     }
     return v;
   });

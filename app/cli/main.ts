@@ -65,7 +65,8 @@ function table(header: string[], rows: string[][], rightAligned: number[] = []):
   return [line(header), line(widths.map((w) => '-'.repeat(w))), ...rows.map(line)].join('\n');
 }
 
-const band = (r: { minHz: number; maxHz: number }) => `${formatFrequency(r.minHz, 4)} - ${formatFrequency(r.maxHz, 4)}`;
+const band = (r: { minHz: number; maxHz: number }) =>
+  `${formatFrequency(r.minHz, 4)} - ${formatFrequency(r.maxHz, 4)}`;
 const verdictWord = (v: Verdict | null) => (v ? VERDICT_WORDS[v] : '-');
 const dueWords = (r: RegisterRow) =>
   r.daysToDue === null ? 'never checked' : r.daysToDue < 0 ? `OVERDUE ${-r.daysToDue} d` : `${r.daysToDue} d`;
@@ -154,7 +155,10 @@ function checkText(c: CheckRecord): string {
     `${((Math.abs(p.result.errorHz) / p.result.decision.toleranceHz) * 100).toFixed(0)} %`,
     VERDICT_WORDS[p.result.decision.verdict],
   ]);
-  return head.join('\n') + table(['#', 'phase', 'reference', 'error', 'U', 'k', 'of tol.', 'verdict'], rows, [0, 3, 4, 5, 6]);
+  return (
+    head.join('\n') +
+    table(['#', 'phase', 'reference', 'error', 'U', 'k', 'of tol.', 'verdict'], rows, [0, 3, 4, 5, 6])
+  );
 }
 
 function readJsonFile(file: string, cwd: string): unknown {
@@ -168,7 +172,12 @@ function readJsonFile(file: string, cwd: string): unknown {
   try {
     return JSON.parse(text) as unknown;
   } catch (e) {
-    throw LabError.field('FILE', file, 'a JSON document', `${file} is not valid JSON: ${e instanceof Error ? e.message : String(e)}`);
+    throw LabError.field(
+      'FILE',
+      file,
+      'a JSON document',
+      `${file} is not valid JSON: ${e instanceof Error ? e.message : String(e)}`,
+    );
   }
 }
 
@@ -179,7 +188,12 @@ function numberOption(name: string, value: string | undefined, required: boolean
   }
   const n = Number(value.trim());
   if (value.trim() === '' || !Number.isFinite(n)) {
-    throw LabError.field(`--${name}`, value, 'a number', `--${name}: ${JSON.stringify(value)} is not a number`);
+    throw LabError.field(
+      `--${name}`,
+      value,
+      'a number',
+      `--${name}: ${JSON.stringify(value)} is not a number`,
+    );
   }
   return n;
 }
@@ -214,7 +228,9 @@ export async function runCli(argv: string[], io: CliIo): Promise<number> {
       io.out(USAGE);
       return command || values.help ? 0 : 2;
     }
-    const dbFile = values.db ? path.resolve(io.cwd, values.db) : labFilePath(io.env, process.platform, homedir());
+    const dbFile = values.db
+      ? path.resolve(io.cwd, values.db)
+      : labFilePath(io.env, process.platform, homedir());
     const print = (value: unknown, text: () => string) => io.out(json ? encodeJson(value, 2) : text());
     const open = () => (opened = openApi(dbFile, { clock: io.clock, actor: io.env.USER ?? 'cli' }));
     const arg = (name: string) => {
@@ -228,7 +244,10 @@ export async function runCli(argv: string[], io: CliIo): Promise<number> {
         await createLabFile(dbFile, values.sample, { clock: io.clock, name: values.name });
         const lab = open();
         const rows = await lab.api.listMeters();
-        print({ file: dbFile, meters: rows.length }, () => `created ${dbFile}${values.sample ? ` with the demo lab (${rows.length} meters)` : ''}`);
+        print(
+          { file: dbFile, meters: rows.length },
+          () => `created ${dbFile}${values.sample ? ` with the demo lab (${rows.length} meters)` : ''}`,
+        );
         return 0;
       }
       case 'refs': {
@@ -314,7 +333,10 @@ export async function runCli(argv: string[], io: CliIo): Promise<number> {
           throw LabError.field('FILE', file, 'a readable CSV file', `cannot read ${file}`);
         }
         const r = await open().api.importCsv(text);
-        print(r, () => `imported ${r.checksImported} checks (${r.pointsImported} points) of ${r.metersSeen} meters`);
+        print(
+          r,
+          () => `imported ${r.checksImported} checks (${r.pointsImported} points) of ${r.metersSeen} meters`,
+        );
         return 0;
       }
       case 'export': {
@@ -329,7 +351,10 @@ export async function runCli(argv: string[], io: CliIo): Promise<number> {
         const port = numberOption('port', values.port, false) ?? 5317;
         const lab = open();
         const { startServer } = await import('../server/server');
-        const staticDir = path.resolve(path.dirname(new URL(import.meta.url).pathname), '../../renderer/dist');
+        const staticDir = path.resolve(
+          path.dirname(new URL(import.meta.url).pathname),
+          '../../renderer/dist',
+        );
         const server = await startServer({ api: lab.api, port, staticDir });
         io.out(`Dipledger: ${server.url}  (Ctrl+C to stop)`);
         opened = undefined; // keep the lab open while serving
@@ -349,7 +374,10 @@ export async function runCli(argv: string[], io: CliIo): Promise<number> {
 }
 
 function report(e: unknown, io: CliIo, json: boolean): number {
-  if (e instanceof UsageError || (e instanceof TypeError && 'code' in e && String(e.code).startsWith('ERR_PARSE_ARGS'))) {
+  if (
+    e instanceof UsageError ||
+    (e instanceof TypeError && 'code' in e && String(e.code).startsWith('ERR_PARSE_ARGS'))
+  ) {
     io.err(`dipledger: ${e.message}\nrun "dipledger --help" for usage`);
     return 2;
   }
@@ -382,7 +410,8 @@ export function processIo(): CliIo {
   };
 }
 
-const invokedDirectly = process.argv[1] && path.resolve(process.argv[1]) === path.resolve(new URL(import.meta.url).pathname);
+const invokedDirectly =
+  process.argv[1] && path.resolve(process.argv[1]) === path.resolve(new URL(import.meta.url).pathname);
 if (invokedDirectly) {
   void runCli(process.argv.slice(2), processIo()).then((code) => {
     process.exitCode = code;

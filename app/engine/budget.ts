@@ -28,8 +28,10 @@ function requireFinite(value: number, what: string): void {
 export function makeContribution(input: ContributionInput): Contribution {
   requireFinite(input.standardUncertainty, `${input.key}: standard uncertainty`);
   requireFinite(input.sensitivity, `${input.key}: sensitivity`);
-  if (input.standardUncertainty < 0) throw new Error(`${input.key}: standard uncertainty must not be negative`);
-  if (Number.isNaN(input.dof) || input.dof <= 0) throw new Error(`${input.key}: degrees of freedom must be positive (got ${input.dof})`);
+  if (input.standardUncertainty < 0)
+    throw new Error(`${input.key}: standard uncertainty must not be negative`);
+  if (Number.isNaN(input.dof) || input.dof <= 0)
+    throw new Error(`${input.key}: degrees of freedom must be positive (got ${input.dof})`);
   return { ...input, contributionHz: Math.abs(input.sensitivity) * input.standardUncertainty };
 }
 
@@ -42,7 +44,8 @@ interface LineIdentity {
 
 /** Type A from n observations with experimental standard deviation s: u = s/sqrt(n), nu = n - 1. */
 export function typeA(line: LineIdentity, standardDeviation: number, count: number): Contribution {
-  if (!Number.isInteger(count) || count < 2) throw new Error(`${line.key}: a Type A evaluation needs at least 2 observations (got ${count})`);
+  if (!Number.isInteger(count) || count < 2)
+    throw new Error(`${line.key}: a Type A evaluation needs at least 2 observations (got ${count})`);
   return makeContribution({
     ...line,
     type: 'A',
@@ -65,9 +68,15 @@ export function rectangular(line: LineIdentity, halfWidth: number): Contribution
 }
 
 /** Type B from a certificate's expanded uncertainty U with coverage factor k: u = U/k. */
-export function normalFromCertificate(line: LineIdentity, expandedUncertainty: number, k: number, dof = Infinity): Contribution {
+export function normalFromCertificate(
+  line: LineIdentity,
+  expandedUncertainty: number,
+  k: number,
+  dof = Infinity,
+): Contribution {
   requireFinite(expandedUncertainty, `${line.key}: expanded uncertainty`);
-  if (!(k > 0) || !Number.isFinite(k)) throw new Error(`${line.key}: coverage factor must be a positive number (got ${k})`);
+  if (!(k > 0) || !Number.isFinite(k))
+    throw new Error(`${line.key}: coverage factor must be a positive number (got ${k})`);
   return makeContribution({
     ...line,
     type: 'B',
@@ -82,7 +91,10 @@ export function normalFromCertificate(line: LineIdentity, expandedUncertainty: n
  * over lines with finite nu and a non-zero contribution (others add nothing to the sum);
  * k from the t-distribution at (1 + p)/2 with nu_eff truncated; U = k u_c.
  */
-export function combine(contributions: readonly Contribution[], coverageProbability: number = DEFAULT_COVERAGE_PROBABILITY): Budget {
+export function combine(
+  contributions: readonly Contribution[],
+  coverageProbability: number = DEFAULT_COVERAGE_PROBABILITY,
+): Budget {
   let variance = 0;
   let denominator = 0;
   for (const line of contributions) {

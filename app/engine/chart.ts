@@ -82,7 +82,12 @@ export function createChart(points: readonly ChartPoint[], field = 'chart'): Mon
     m[1] = secants[0] as number;
   } else {
     m[0] = endTangent(h[0] as number, h[1] as number, secants[0] as number, secants[1] as number);
-    m[count - 1] = endTangent(h[count - 2] as number, h[count - 3] as number, secants[count - 2] as number, secants[count - 3] as number);
+    m[count - 1] = endTangent(
+      h[count - 2] as number,
+      h[count - 3] as number,
+      secants[count - 2] as number,
+      secants[count - 3] as number,
+    );
   }
   for (let k = 1; k < count - 1; k++) {
     const hPrev = h[k - 1] as number;
@@ -102,7 +107,12 @@ export function createChart(points: readonly ChartPoint[], field = 'chart'): Mon
       m[k + 1] = tau * b * delta;
     }
   }
-  return { divisions: x, frequencyHz: y, tangentsHzPerDivision: m, increasing: (y[count - 1] as number) > (y[0] as number) };
+  return {
+    divisions: x,
+    frequencyHz: y,
+    tangentsHzPerDivision: m,
+    increasing: (y[count - 1] as number) > (y[0] as number),
+  };
 }
 
 function asChart(chart: MonotoneChart | readonly ChartPoint[]): MonotoneChart {
@@ -114,9 +124,12 @@ function intervalOf(chart: MonotoneChart, divisions: number, field: string): num
   const x = chart.divisions;
   const first = x[0] as number;
   const last = x[x.length - 1] as number;
-  if (!Number.isFinite(divisions)) throw new ChartError(`${field}: ${String(divisions)} is not a finite dial reading`);
+  if (!Number.isFinite(divisions))
+    throw new ChartError(`${field}: ${String(divisions)} is not a finite dial reading`);
   if (divisions < first || divisions > last) {
-    throw new ChartError(`${field}: ${divisions} divisions is outside the chart's range ${first} to ${last} divisions`);
+    throw new ChartError(
+      `${field}: ${divisions} divisions is outside the chart's range ${first} to ${last} divisions`,
+    );
   }
   let lo = 0;
   let hi = x.length - 1;
@@ -128,7 +141,11 @@ function intervalOf(chart: MonotoneChart, divisions: number, field: string): num
   return lo;
 }
 
-function hermite(chart: MonotoneChart, k: number, divisions: number): { valueHz: number; slopeHzPerDivision: number } {
+function hermite(
+  chart: MonotoneChart,
+  k: number,
+  divisions: number,
+): { valueHz: number; slopeHzPerDivision: number } {
   const x0 = chart.divisions[k] as number;
   const x1 = chart.divisions[k + 1] as number;
   const y0 = chart.frequencyHz[k] as number;
@@ -139,7 +156,8 @@ function hermite(chart: MonotoneChart, k: number, divisions: number): { valueHz:
   const t = (divisions - x0) / h;
   const t2 = t * t;
   const t3 = t2 * t;
-  const raw = (2 * t3 - 3 * t2 + 1) * y0 + (t3 - 2 * t2 + t) * h * m0 + (-2 * t3 + 3 * t2) * y1 + (t3 - t2) * h * m1;
+  const raw =
+    (2 * t3 - 3 * t2 + 1) * y0 + (t3 - 2 * t2 + t) * h * m0 + (-2 * t3 + 3 * t2) * y1 + (t3 - t2) * h * m1;
   // A monotone piece stays between its knot values; clamp away last-bit rounding excursions so
   // the curve is monotone in floating point too.
   const valueHz = Math.min(Math.max(raw, Math.min(y0, y1)), Math.max(y0, y1));
@@ -149,25 +167,39 @@ function hermite(chart: MonotoneChart, k: number, divisions: number): { valueHz:
 }
 
 /** Frequency at a dial reading in divisions. Throws ChartError outside the chart's range. */
-export function frequencyAtDivisions(chart: MonotoneChart | readonly ChartPoint[], divisions: number, field = 'reading'): number {
+export function frequencyAtDivisions(
+  chart: MonotoneChart | readonly ChartPoint[],
+  divisions: number,
+  field = 'reading',
+): number {
   const c = asChart(chart);
   return hermite(c, intervalOf(c, divisions, field), divisions).valueHz;
 }
 
 /** Local slope dHz/ddiv at a dial reading (negative for a chart whose frequency falls). */
-export function slopeHzPerDivision(chart: MonotoneChart | readonly ChartPoint[], divisions: number, field = 'reading'): number {
+export function slopeHzPerDivision(
+  chart: MonotoneChart | readonly ChartPoint[],
+  divisions: number,
+  field = 'reading',
+): number {
   const c = asChart(chart);
   return hermite(c, intervalOf(c, divisions, field), divisions).slopeHzPerDivision;
 }
 
 /** Dial reading in divisions at which the chart gives frequencyHz (bisection; for generating data). */
-export function divisionsAtFrequency(chart: MonotoneChart | readonly ChartPoint[], frequencyHz: number, field = 'frequency'): number {
+export function divisionsAtFrequency(
+  chart: MonotoneChart | readonly ChartPoint[],
+  frequencyHz: number,
+  field = 'frequency',
+): number {
   const c = asChart(chart);
   const y = c.frequencyHz;
   const lowHz = Math.min(y[0] as number, y[y.length - 1] as number);
   const highHz = Math.max(y[0] as number, y[y.length - 1] as number);
   if (!Number.isFinite(frequencyHz) || frequencyHz < lowHz || frequencyHz > highHz) {
-    throw new ChartError(`${field}: ${String(frequencyHz)} Hz is outside the chart's range ${lowHz} Hz to ${highHz} Hz`);
+    throw new ChartError(
+      `${field}: ${String(frequencyHz)} Hz is outside the chart's range ${lowHz} Hz to ${highHz} Hz`,
+    );
   }
   // Find the knot interval first (the knots are monotone), then bisect inside it, where the
   // Fritsch-Carlson piece is monotone.

@@ -16,7 +16,10 @@ import { normalCdf } from './distributions';
 
 /** Tolerance half-width in Hz at a reading: relative term plus absolute term. "0.1 % of reading"
  * is accuracyRelPpm = 1000 (common practice for cavity meters). */
-export function toleranceHz(spec: Pick<MeterSpec, 'accuracyRelPpm' | 'accuracyAbsHz'>, readingHz: number): number {
+export function toleranceHz(
+  spec: Pick<MeterSpec, 'accuracyRelPpm' | 'accuracyAbsHz'>,
+  readingHz: number,
+): number {
   // ppm * Hz / 1e6 rather than ppm * 1e-6 * Hz: 1e-6 is not exact in binary, and exact limits
   // matter for results that sit on them.
   return (spec.accuracyRelPpm * Math.abs(readingHz)) / 1e6 + spec.accuracyAbsHz;
@@ -24,13 +27,24 @@ export function toleranceHz(spec: Pick<MeterSpec, 'accuracyRelPpm' | 'accuracyAb
 
 /** Probability that a normally distributed measurand (expectation y, standard deviation u) lies
  * in [lower, upper] (JCGM 106:2012 7.4). u = 0 gives 1 inside (ends included), 0 outside. */
-export function probabilityInInterval(lower: number, upper: number, estimate: number, standardUncertainty: number): number {
+export function probabilityInInterval(
+  lower: number,
+  upper: number,
+  estimate: number,
+  standardUncertainty: number,
+): number {
   if (!(standardUncertainty > 0)) return estimate >= lower && estimate <= upper ? 1 : 0;
-  return normalCdf((upper - estimate) / standardUncertainty) - normalCdf((lower - estimate) / standardUncertainty);
+  return (
+    normalCdf((upper - estimate) / standardUncertainty) - normalCdf((lower - estimate) / standardUncertainty)
+  );
 }
 
 /** p_c for |E| <= T: Phi((T - E)/u) - Phi((-T - E)/u). */
-export function probabilityOfConformity(errorHz: number, toleranceHalfWidthHz: number, combinedHz: number): number {
+export function probabilityOfConformity(
+  errorHz: number,
+  toleranceHalfWidthHz: number,
+  combinedHz: number,
+): number {
   return probabilityInInterval(-toleranceHalfWidthHz, toleranceHalfWidthHz, errorHz, combinedHz);
 }
 
@@ -64,9 +78,12 @@ export function decide(rule: DecisionRule, inputs: DecisionInputs): Decision {
   for (const [name, v] of Object.entries(inputs)) {
     if (!Number.isFinite(v)) throw new Error(`decision: ${name} must be a finite number (got ${String(v)})`);
   }
-  if (t < 0 || combinedHz < 0 || expandedHz < 0) throw new Error('decision: tolerance and uncertainties must not be negative');
-  if (rule.kind === 'guarded' && !(rule.multipleOfU >= 0)) throw new Error('decision: guard band multiple of U must not be negative');
-  if (rule.kind === 'guarded-fixed' && !(rule.guardBandPpm >= 0)) throw new Error('decision: fixed guard band must not be negative');
+  if (t < 0 || combinedHz < 0 || expandedHz < 0)
+    throw new Error('decision: tolerance and uncertainties must not be negative');
+  if (rule.kind === 'guarded' && !(rule.multipleOfU >= 0))
+    throw new Error('decision: guard band multiple of U must not be negative');
+  if (rule.kind === 'guarded-fixed' && !(rule.guardBandPpm >= 0))
+    throw new Error('decision: fixed guard band must not be negative');
   const w = guardBandHz(rule, expandedHz, readingHz);
   const magnitude = Math.abs(errorHz);
   const acceptanceLimitHz = t - w;

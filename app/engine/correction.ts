@@ -40,7 +40,11 @@ export function correctionFactor(inputs: CorrectionInputs, reference: ReferenceC
 }
 
 /** f_c = f_read / g: the model function, differentiated for the budget's sensitivities. */
-export function correctedFrequencyHz(readingHz: number, inputs: CorrectionInputs, reference: ReferenceConditions): number {
+export function correctedFrequencyHz(
+  readingHz: number,
+  inputs: CorrectionInputs,
+  reference: ReferenceConditions,
+): number {
   return readingHz / correctionFactor(inputs, reference);
 }
 

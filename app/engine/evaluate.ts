@@ -7,7 +7,15 @@
 // means of the indication (plus zero-mean terms for repeatability, resolution, hysteresis and
 // setting) and g the correction factor of correction.ts.
 
-import type { Conditions, Contribution, DecisionRule, Direction, MeterSpec, PointInput, PointResult } from './model';
+import type {
+  Conditions,
+  Contribution,
+  DecisionRule,
+  Direction,
+  MeterSpec,
+  PointInput,
+  PointResult,
+} from './model';
 import { createChart, frequencyAtDivisions, slopeHzPerDivision, type MonotoneChart } from './chart';
 import { correctToReference, correctionSensitivities, type CorrectionInputs } from './correction';
 import { combine, makeContribution, normalFromCertificate, rectangular } from './budget';
@@ -51,11 +59,13 @@ function validate(spec: MeterSpec, conditions: Conditions, point: PointInput): v
   requireNonNegative(conditions.pressureUncertaintyHpa, 'conditions.pressureUncertaintyHpa');
   requireNonNegative(conditions.humidityPct, 'conditions.humidityPct');
   requireNonNegative(conditions.humidityUncertaintyPct, 'conditions.humidityUncertaintyPct');
-  if (conditions.humidityPct > 100) throw new Error(`conditions.humidityPct must not exceed 100 (got ${conditions.humidityPct})`);
+  if (conditions.humidityPct > 100)
+    throw new Error(`conditions.humidityPct must not exceed 100 (got ${conditions.humidityPct})`);
   requirePositive(point.reference.frequencyHz, 'point.reference.frequencyHz');
   requireNonNegative(point.reference.expandedUncertaintyPpm, 'point.reference.expandedUncertaintyPpm');
   requirePositive(point.reference.coverageFactor, 'point.reference.coverageFactor');
-  if (!Array.isArray(point.readings) || point.readings.length === 0) throw new Error('point.readings: at least one reading is needed');
+  if (!Array.isArray(point.readings) || point.readings.length === 0)
+    throw new Error('point.readings: at least one reading is needed');
   point.readings.forEach((r, i) => {
     requireFinite(r.value, `point.readings[${i}].value`);
     if (r.direction !== 'up' && r.direction !== 'down') {
@@ -69,7 +79,12 @@ function mean(values: readonly number[]): number {
 }
 
 /** Evaluates one check point. Throws Error on invalid input (the API validates earlier). */
-export function evaluatePoint(spec: MeterSpec, conditions: Conditions, point: PointInput, rule: DecisionRule): PointResult {
+export function evaluatePoint(
+  spec: MeterSpec,
+  conditions: Conditions,
+  point: PointInput,
+  rule: DecisionRule,
+): PointResult {
   validate(spec, conditions, point);
   const notes: string[] = [];
   const divisionsMeter = spec.dialKind === 'divisions';
@@ -78,7 +93,8 @@ export function evaluatePoint(spec: MeterSpec, conditions: Conditions, point: Po
     if (!spec.chart) throw new Error('spec.chart: a divisions meter needs a chart');
     chart = createChart(spec.chart, 'spec.chart');
   }
-  const toHz = (dial: number, field: string): number => (chart ? frequencyAtDivisions(chart, dial, field) : dial);
+  const toHz = (dial: number, field: string): number =>
+    chart ? frequencyAtDivisions(chart, dial, field) : dial;
   // Every reading must lie on the chart, not only the means: say which one does not.
   point.readings.forEach((r, i) => toHz(r.value, `point.readings[${i}]`));
 
@@ -161,7 +177,12 @@ export function evaluatePoint(spec: MeterSpec, conditions: Conditions, point: Po
     );
     lines.push(
       rectangular(
-        { key: 'repeatability', label: 'Repeatability (range of readings, rectangular)', unit: dialUnit, sensitivity: dialSensitivity },
+        {
+          key: 'repeatability',
+          label: 'Repeatability (range of readings, rectangular)',
+          unit: dialUnit,
+          sensitivity: dialSensitivity,
+        },
         range,
       ),
     );
@@ -169,7 +190,12 @@ export function evaluatePoint(spec: MeterSpec, conditions: Conditions, point: Po
 
   lines.push(
     rectangular(
-      { key: 'resolution', label: `Dial resolution (${spec.resolution} ${dialUnit}, half-width = resolution / 2)`, unit: dialUnit, sensitivity: dialSensitivity },
+      {
+        key: 'resolution',
+        label: `Dial resolution (${spec.resolution} ${dialUnit}, half-width = resolution / 2)`,
+        unit: dialUnit,
+        sensitivity: dialSensitivity,
+      },
       spec.resolution / 2,
     ),
   );
@@ -177,7 +203,12 @@ export function evaluatePoint(spec: MeterSpec, conditions: Conditions, point: Po
   if (bothDirections) {
     lines.push(
       rectangular(
-        { key: 'hysteresis', label: 'Hysteresis between directions (half the difference of the means)', unit: 'Hz', sensitivity: sens.dReading },
+        {
+          key: 'hysteresis',
+          label: 'Hysteresis between directions (half the difference of the means)',
+          unit: 'Hz',
+          sensitivity: sens.dReading,
+        },
         Math.abs(upMeanHz - downMeanHz) / 2,
       ),
     );

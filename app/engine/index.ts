@@ -42,8 +42,22 @@ export {
   slopeHzPerDivision,
   type MonotoneChart,
 } from './chart';
-export { DEFAULT_COVERAGE_PROBABILITY, coverageFactor, normalCdf, normalQuantile, tQuantile } from './distributions';
-export { combine, makeContribution, normalFromCertificate, rectangular, typeA, type ContributionInput, type ContributionKey } from './budget';
+export {
+  DEFAULT_COVERAGE_PROBABILITY,
+  coverageFactor,
+  normalCdf,
+  normalQuantile,
+  tQuantile,
+} from './distributions';
+export {
+  combine,
+  makeContribution,
+  normalFromCertificate,
+  rectangular,
+  typeA,
+  type ContributionInput,
+  type ContributionKey,
+} from './budget';
 export {
   decide,
   guardBandHz,

@@ -73,7 +73,8 @@ function splitNumber(
 }
 
 function checkPositiveHz(hz: number, shown: string, field: string): FrequencyParse {
-  if (!Number.isFinite(hz)) return { ok: false, message: `${field}: ${shown} is not a finite number; ${EXPECTED}` };
+  if (!Number.isFinite(hz))
+    return { ok: false, message: `${field}: ${shown} is not a finite number; ${EXPECTED}` };
   if (hz < 0) return { ok: false, message: `${field}: ${shown} is negative; ${EXPECTED}` };
   if (hz === 0) return { ok: false, message: `${field}: ${shown} is zero; ${EXPECTED}` };
   return { ok: true, hz };
@@ -108,7 +109,10 @@ export function parseFrequencyHz(input: string | number, field: string): Frequen
   if (split.unit === '') return bareNumber(split.value, shown, field);
   const factor = FREQUENCY_UNITS[split.unit];
   if (factor === undefined) {
-    return { ok: false, message: `${field}: ${shown} has an unknown unit "${split.unit}"; use Hz, kHz, MHz, GHz or THz; ${EXPECTED}` };
+    return {
+      ok: false,
+      message: `${field}: ${shown} has an unknown unit "${split.unit}"; use Hz, kHz, MHz, GHz or THz; ${EXPECTED}`,
+    };
   }
   return checkPositiveHz(split.value * factor, shown, field);
 }
@@ -120,17 +124,26 @@ const EXPECTED_DIVISIONS = 'expected a dial reading in divisions such as "12.5" 
 export function parseDivisions(input: string | number, field: string): DivisionsParse {
   if (typeof input === 'number') {
     if (!Number.isFinite(input)) {
-      return { ok: false, message: `${field}: ${quote(input)} is not a finite number; ${EXPECTED_DIVISIONS}` };
+      return {
+        ok: false,
+        message: `${field}: ${quote(input)} is not a finite number; ${EXPECTED_DIVISIONS}`,
+      };
     }
     return { ok: true, divisions: input };
   }
   if (typeof input !== 'string') {
-    return { ok: false, message: `${field}: ${quote(input)} is not a number or a string; ${EXPECTED_DIVISIONS}` };
+    return {
+      ok: false,
+      message: `${field}: ${quote(input)} is not a number or a string; ${EXPECTED_DIVISIONS}`,
+    };
   }
   const split = splitNumber(input, field, EXPECTED_DIVISIONS);
   if (!split.ok) return split;
   if (!DIVISION_UNITS.has(split.unit)) {
-    return { ok: false, message: `${field}: ${quote(input)} has an unknown unit "${split.unit}"; ${EXPECTED_DIVISIONS}` };
+    return {
+      ok: false,
+      message: `${field}: ${quote(input)} has an unknown unit "${split.unit}"; ${EXPECTED_DIVISIONS}`,
+    };
   }
   return { ok: true, divisions: split.value };
 }

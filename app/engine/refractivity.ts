@@ -26,7 +26,11 @@ export function saturationVapourPressureHpa(temperatureC: number, pressureHpa: n
 }
 
 /** Water-vapour (partial) pressure e = H es / 100, hPa. */
-export function waterVapourPressureHpa(temperatureC: number, pressureHpa: number, humidityPct: number): number {
+export function waterVapourPressureHpa(
+  temperatureC: number,
+  pressureHpa: number,
+  humidityPct: number,
+): number {
   return (humidityPct * saturationVapourPressureHpa(temperatureC, pressureHpa)) / 100;
 }
 
@@ -63,16 +67,23 @@ const STEP_PRESSURE_HPA = 1e-2;
 const STEP_HUMIDITY_PCT = 1e-2;
 
 /** Partial derivatives of N by central differences (error O(h^2), far below 1e-6 relative here). */
-export function refractivityPartials(temperatureC: number, pressureHpa: number, humidityPct: number): RefractivityPartials {
+export function refractivityPartials(
+  temperatureC: number,
+  pressureHpa: number,
+  humidityPct: number,
+): RefractivityPartials {
   const t = temperatureC;
   const p = pressureHpa;
   const h = humidityPct;
   return {
     dNdTemperaturePerK:
-      (refractivityN(t + STEP_TEMPERATURE_K, p, h) - refractivityN(t - STEP_TEMPERATURE_K, p, h)) / (2 * STEP_TEMPERATURE_K),
+      (refractivityN(t + STEP_TEMPERATURE_K, p, h) - refractivityN(t - STEP_TEMPERATURE_K, p, h)) /
+      (2 * STEP_TEMPERATURE_K),
     dNdPressurePerHpa:
-      (refractivityN(t, p + STEP_PRESSURE_HPA, h) - refractivityN(t, p - STEP_PRESSURE_HPA, h)) / (2 * STEP_PRESSURE_HPA),
+      (refractivityN(t, p + STEP_PRESSURE_HPA, h) - refractivityN(t, p - STEP_PRESSURE_HPA, h)) /
+      (2 * STEP_PRESSURE_HPA),
     dNdHumidityPerPct:
-      (refractivityN(t, p, h + STEP_HUMIDITY_PCT) - refractivityN(t, p, h - STEP_HUMIDITY_PCT)) / (2 * STEP_HUMIDITY_PCT),
+      (refractivityN(t, p, h + STEP_HUMIDITY_PCT) - refractivityN(t, p, h - STEP_HUMIDITY_PCT)) /
+      (2 * STEP_HUMIDITY_PCT),
   };
 }

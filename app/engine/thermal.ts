@@ -15,6 +15,10 @@ export function resonanceShiftPpm(alphaPerK: number, temperatureC: number, refer
 }
 
 /** First-order relative shift of the resonance, ppm: -alpha dT. */
-export function resonanceShiftFirstOrderPpm(alphaPerK: number, temperatureC: number, referenceC: number): number {
+export function resonanceShiftFirstOrderPpm(
+  alphaPerK: number,
+  temperatureC: number,
+  referenceC: number,
+): number {
   return -alphaPerK * (temperatureC - referenceC) * 1e6;
 }

@@ -16,7 +16,8 @@ export interface AuditInput {
 export const GENESIS_HASH = '0'.repeat(64);
 
 export function appendAudit(db: LabDb, e: AuditInput): string {
-  const last = db.prepare('SELECT hash FROM audit_entry ORDER BY id DESC LIMIT 1').get() as { hash: string } | undefined;
+  const last = db.prepare('SELECT hash FROM audit_entry ORDER BY id DESC LIMIT 1').get() as
+    { hash: string } | undefined;
   const prevHash = last?.hash ?? GENESIS_HASH;
   const beforeJson = e.before === undefined ? null : JSON.stringify(e.before);
   const afterJson = e.after === undefined ? null : JSON.stringify(e.after);

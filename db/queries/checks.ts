@@ -32,7 +32,8 @@ export interface NewCheckRevision {
 /** Writes a new check (revision 1, unsigned) and returns its id. Call inside a transaction. */
 export function insertCheck(db: LabDb, c: NewCheckRevision, recordedAt: string): number {
   const checkId = Number(
-    db.prepare('INSERT INTO check_event (meter_id, created_at) VALUES (?, ?)').run(c.meterId, recordedAt).lastInsertRowid,
+    db.prepare('INSERT INTO check_event (meter_id, created_at) VALUES (?, ?)').run(c.meterId, recordedAt)
+      .lastInsertRowid,
   );
   const revisionId = Number(
     db
@@ -63,7 +64,9 @@ export function insertCheck(db: LabDb, c: NewCheckRevision, recordedAt: string):
         recordedAt,
       ).lastInsertRowid,
   );
-  const std = db.prepare('INSERT INTO check_revision_standard (revision_id, standard_id, certificate_id) VALUES (?, ?, ?)');
+  const std = db.prepare(
+    'INSERT INTO check_revision_standard (revision_id, standard_id, certificate_id) VALUES (?, ?, ?)',
+  );
   for (const s of c.standards) std.run(revisionId, s.standardId, s.certificateRowId);
   const pt = db.prepare(
     `INSERT INTO check_point (revision_id, seq, phase, reference_hz, standard_id, dip_depth_db, error_hz, error_ppm,

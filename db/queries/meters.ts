@@ -55,7 +55,11 @@ function rowToMeter(db: LabDb, r: MeterRow): Meter {
     chart: chart.map((c) => ({ divisions: c.divisions, frequencyHz: c.frequency_hz })),
     alphaPerK: r.alpha_per_k,
     alphaUncertaintyPerK: r.u_alpha_per_k,
-    reference: { temperatureC: r.ref_temperature_c, pressureHpa: r.ref_pressure_hpa, humidityPct: r.ref_humidity_pct },
+    reference: {
+      temperatureC: r.ref_temperature_c,
+      pressureHpa: r.ref_pressure_hpa,
+      humidityPct: r.ref_humidity_pct,
+    },
     loadedQ: r.loaded_q,
     settingFraction: r.setting_fraction,
     minDipDb: r.min_dip_db,
@@ -116,7 +120,9 @@ export function insertMeter(db: LabDb, m: Meter, createdAt: string): number {
       created_at: createdAt,
     });
   const id = Number(info.lastInsertRowid);
-  const chart = db.prepare('INSERT INTO meter_chart_point (meter_id, divisions, frequency_hz) VALUES (?, ?, ?)');
+  const chart = db.prepare(
+    'INSERT INTO meter_chart_point (meter_id, divisions, frequency_hz) VALUES (?, ?, ?)',
+  );
   for (const c of m.chart) chart.run(id, c.divisions, c.frequencyHz);
   const plan = db.prepare('INSERT INTO meter_plan_point (meter_id, frequency_hz) VALUES (?, ?)');
   for (const f of m.planHz) plan.run(id, f);

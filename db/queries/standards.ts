@@ -40,21 +40,31 @@ const rowToCertificate = (r: CertificateRow): StandardCertificate & { id: number
 function certificatesOf(db: LabDb, standardId: number): (StandardCertificate & { id: number })[] {
   return (
     db
-      .prepare('SELECT * FROM standard_certificate WHERE standard_id = ? ORDER BY calibrated_on DESC, id DESC')
+      .prepare(
+        'SELECT * FROM standard_certificate WHERE standard_id = ? ORDER BY calibrated_on DESC, id DESC',
+      )
       .all(standardId) as CertificateRow[]
   ).map(rowToCertificate);
 }
 
 export function listStandards(db: LabDb): StandardRecord[] {
-  const rows = db.prepare('SELECT id, asset_id, description FROM standard ORDER BY asset_id').all() as StandardRow[];
-  return rows.map((r) => ({ id: r.id, assetId: r.asset_id, description: r.description, certificates: certificatesOf(db, r.id) }));
+  const rows = db
+    .prepare('SELECT id, asset_id, description FROM standard ORDER BY asset_id')
+    .all() as StandardRow[];
+  return rows.map((r) => ({
+    id: r.id,
+    assetId: r.asset_id,
+    description: r.description,
+    certificates: certificatesOf(db, r.id),
+  }));
 }
 
 export function getStandardByAsset(db: LabDb, assetId: string): StandardRecord | undefined {
   const r = db.prepare('SELECT id, asset_id, description FROM standard WHERE asset_id = ?').get(assetId) as
-    | StandardRow
-    | undefined;
-  return r && { id: r.id, assetId: r.asset_id, description: r.description, certificates: certificatesOf(db, r.id) };
+    StandardRow | undefined;
+  return (
+    r && { id: r.id, assetId: r.asset_id, description: r.description, certificates: certificatesOf(db, r.id) }
+  );
 }
 
 export function insertStandard(
@@ -71,7 +81,15 @@ export function insertStandard(
      VALUES (?, ?, ?, ?, ?, ?, ?)`,
   );
   for (const c of s.certificates) {
-    ins.run(id, c.certificateId, c.issuedBy, c.calibratedOn, c.dueOn, c.expandedUncertaintyPpm, c.coverageFactor);
+    ins.run(
+      id,
+      c.certificateId,
+      c.issuedBy,
+      c.calibratedOn,
+      c.dueOn,
+      c.expandedUncertaintyPpm,
+      c.coverageFactor,
+    );
   }
   return id;
 }

@@ -19,7 +19,13 @@ async function refusal(p: Promise<unknown>): Promise<LabError> {
 async function fingerprint(api: LabApi): Promise<string> {
   const meters = await api.listMeters();
   const details = await Promise.all(meters.map((m) => api.getMeter(m.assetId)));
-  return JSON.stringify([meters, details, await api.listStandards(), await api.listPeople(), await api.exportCsv()]);
+  return JSON.stringify([
+    meters,
+    details,
+    await api.listStandards(),
+    await api.listPeople(),
+    await api.exportCsv(),
+  ]);
 }
 
 describe('recording a check', () => {
@@ -39,12 +45,26 @@ describe('recording a check', () => {
     // 0.1 % of reading at 10 GHz is 10 MHz (common practice tolerance).
     expect(p.result.decision.toleranceHz).toBeCloseTo(0.001 * p.result.correctedHz, 0);
     expect(p.result.budget.contributions.map((c) => c.key)).toEqual(
-      expect.arrayContaining(['reference', 'repeatability', 'resolution', 'hysteresis', 'setting', 'temperature', 'pressure', 'humidity']),
+      expect.arrayContaining([
+        'reference',
+        'repeatability',
+        'resolution',
+        'hysteresis',
+        'setting',
+        'temperature',
+        'pressure',
+        'humidity',
+      ]),
     );
     expect(rec.asFoundVerdict).toBe('pass');
     expect(rec.asLeftVerdict).toBe('pass');
     const reg = (await lab.api.listMeters()).find((r) => r.assetId === 'TW-01');
-    expect(reg).toMatchObject({ lastCheckDate: '2026-11-20', lastVerdict: 'pass', dueDate: '2027-11-20', daysToDue: 354 });
+    expect(reg).toMatchObject({
+      lastCheckDate: '2026-11-20',
+      lastVerdict: 'pass',
+      dueDate: '2027-11-20',
+      daysToDue: 354,
+    });
     const again = await lab.api.getCheck(rec.checkId);
     expect(again).toEqual(rec);
     lab.close();
@@ -81,8 +101,22 @@ describe('recording a check', () => {
       goodCheck({
         adjusted: true,
         points: [
-          { phase: 'as-found', reference: '10 GHz', readings: [{ value: '10.0150 GHz', direction: 'up' }, { value: '10.0160 GHz', direction: 'down' }] },
-          { phase: 'as-left', reference: '10 GHz', readings: [{ value: '10.0010 GHz', direction: 'up' }, { value: '10.0012 GHz', direction: 'down' }] },
+          {
+            phase: 'as-found',
+            reference: '10 GHz',
+            readings: [
+              { value: '10.0150 GHz', direction: 'up' },
+              { value: '10.0160 GHz', direction: 'down' },
+            ],
+          },
+          {
+            phase: 'as-left',
+            reference: '10 GHz',
+            readings: [
+              { value: '10.0010 GHz', direction: 'up' },
+              { value: '10.0012 GHz', direction: 'down' },
+            ],
+          },
         ],
       }),
     );
@@ -96,31 +130,101 @@ describe('refusals name the field and write nothing', () => {
   const cases: { name: string; doc: Record<string, unknown>; field: RegExp; words: RegExp }[] = [
     {
       name: 'a decimal comma',
-      doc: { points: [{ reference: '9,3 GHz', readings: [{ value: '9.3 GHz', direction: 'up' }, { value: '9.3 GHz', direction: 'down' }] }] },
+      doc: {
+        points: [
+          {
+            reference: '9,3 GHz',
+            readings: [
+              { value: '9.3 GHz', direction: 'up' },
+              { value: '9.3 GHz', direction: 'down' },
+            ],
+          },
+        ],
+      },
       field: /^points\[0\]\.reference$/,
       words: /decimal comma/,
     },
     {
       name: 'a missing unit',
-      doc: { points: [{ reference: '10 GHz', readings: [{ value: '10.004', direction: 'up' }, { value: '10.004 GHz', direction: 'down' }] }] },
+      doc: {
+        points: [
+          {
+            reference: '10 GHz',
+            readings: [
+              { value: '10.004', direction: 'up' },
+              { value: '10.004 GHz', direction: 'down' },
+            ],
+          },
+        ],
+      },
       field: /^points\[0\]\.readings\[0\]\.value$/,
       words: /no unit/,
     },
     {
       name: 'a reading outside the band',
-      doc: { points: [{ reference: '12 GHz', readings: [{ value: '14.2 GHz', direction: 'up' }, { value: '12 GHz', direction: 'down' }] }] },
+      doc: {
+        points: [
+          {
+            reference: '12 GHz',
+            readings: [
+              { value: '14.2 GHz', direction: 'up' },
+              { value: '12 GHz', direction: 'down' },
+            ],
+          },
+        ],
+      },
       field: /^points\[0\]\.readings\[0\]\.value$/,
       words: /band|outside/,
     },
     { name: 'a date in the future', doc: { date: '2027-01-15' }, field: /^date$/, words: /future/ },
     { name: 'an unknown meter', doc: { meter: 'NOPE-9' }, field: /^meter$/, words: /no meter "NOPE-9"/ },
-    { name: 'a lab standard that does not exist', doc: { standards: ['SRC-Z'] }, field: /^standards\[0\]$/, words: /no lab standard "SRC-Z"/ },
-    { name: 'a standard out of calibration on the date', doc: { date: '2024-03-01' }, field: /^standards\[0\]$/, words: /no valid calibration on 2024-03-01/ },
-    { name: 'an unknown performer', doc: { performer: 'Nobody Known' }, field: /^performer$/, words: /not one of the lab's people/ },
+    {
+      name: 'a lab standard that does not exist',
+      doc: { standards: ['SRC-Z'] },
+      field: /^standards\[0\]$/,
+      words: /no lab standard "SRC-Z"/,
+    },
+    {
+      name: 'a standard out of calibration on the date',
+      doc: { date: '2024-03-01' },
+      field: /^standards\[0\]$/,
+      words: /no valid calibration on 2024-03-01/,
+    },
+    {
+      name: 'an unknown performer',
+      doc: { performer: 'Nobody Known' },
+      field: /^performer$/,
+      words: /not one of the lab's people/,
+    },
     { name: 'a malformed date', doc: { date: '2026-13-01' }, field: /^date$/, words: /YYYY-MM-DD/ },
-    { name: 'humidity out of range', doc: { conditions: { temperatureC: 21, pressureHpa: 1010, humidityPct: 140 } }, field: /^conditions\.humidityPct$/, words: /0 to 100/ },
-    { name: 'a single reading', doc: { points: [{ reference: '10 GHz', readings: [{ value: '10 GHz', direction: 'up' }] }] }, field: /^points\[0\]\.readings$/, words: /at least two/ },
-    { name: 'a wrong direction word', doc: { points: [{ reference: '10 GHz', readings: [{ value: '10 GHz', direction: 'sideways' }, { value: '10 GHz', direction: 'up' }] }] }, field: /^points\[0\]\.readings\[0\]\.direction$/, words: /"up" or "down"/ },
+    {
+      name: 'humidity out of range',
+      doc: { conditions: { temperatureC: 21, pressureHpa: 1010, humidityPct: 140 } },
+      field: /^conditions\.humidityPct$/,
+      words: /0 to 100/,
+    },
+    {
+      name: 'a single reading',
+      doc: { points: [{ reference: '10 GHz', readings: [{ value: '10 GHz', direction: 'up' }] }] },
+      field: /^points\[0\]\.readings$/,
+      words: /at least two/,
+    },
+    {
+      name: 'a wrong direction word',
+      doc: {
+        points: [
+          {
+            reference: '10 GHz',
+            readings: [
+              { value: '10 GHz', direction: 'sideways' },
+              { value: '10 GHz', direction: 'up' },
+            ],
+          },
+        ],
+      },
+      field: /^points\[0\]\.readings\[0\]\.direction$/,
+      words: /"up" or "down"/,
+    },
   ];
 
   for (const c of cases) {
@@ -146,7 +250,16 @@ describe('refusals name the field and write nothing', () => {
   it('refuses a meter whose band is given the wrong way round', async () => {
     const lab = await seededLab();
     const e = await refusal(
-      lab.api.createMeter({ assetId: 'X', construction: 'coaxial', min: '4 GHz', max: '2 GHz', dialKind: 'direct', accuracyRelPpm: 1000, resolution: '1 MHz', alphaPerK: 1e-5 }),
+      lab.api.createMeter({
+        assetId: 'X',
+        construction: 'coaxial',
+        min: '4 GHz',
+        max: '2 GHz',
+        dialKind: 'direct',
+        accuracyRelPpm: 1000,
+        resolution: '1 MHz',
+        alphaPerK: 1e-5,
+      }),
     );
     expect(e.issues[0]?.field).toBe('max');
   });
@@ -197,7 +310,21 @@ describe('history in and out as CSV', () => {
   it('round-trips: export, import into a fresh lab, same results', async () => {
     const a = await seededLab();
     await a.api.recordCheck(goodCheck());
-    await a.api.recordCheck(goodCheck({ date: '2026-10-02', meter: 'TW-02', points: [{ reference: '3 GHz', readings: [{ value: 9.01, direction: 'up' }, { value: 9.02, direction: 'down' }] }] }));
+    await a.api.recordCheck(
+      goodCheck({
+        date: '2026-10-02',
+        meter: 'TW-02',
+        points: [
+          {
+            reference: '3 GHz',
+            readings: [
+              { value: 9.01, direction: 'up' },
+              { value: 9.02, direction: 'down' },
+            ],
+          },
+        ],
+      }),
+    );
     const csv = await a.api.exportCsv();
     expect(csv.split('\r\n')[0]).toMatch(/^meter,date,performer,standards,/);
     const b = await seededLab();

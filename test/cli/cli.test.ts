@@ -59,7 +59,15 @@ describe('dipledger record', () => {
   it('exits 1 with --require-pass when a verdict is not a pass', async () => {
     const { dir, file } = await labDir();
     const failing = goodCheck({
-      points: [{ reference: '10 GHz', readings: [{ value: '10.02 GHz', direction: 'up' }, { value: '10.021 GHz', direction: 'down' }] }],
+      points: [
+        {
+          reference: '10 GHz',
+          readings: [
+            { value: '10.02 GHz', direction: 'up' },
+            { value: '10.021 GHz', direction: 'down' },
+          ],
+        },
+      ],
     });
     writeFileSync(path.join(dir, 'check.json'), JSON.stringify(failing));
     const o = io(dir);
@@ -68,12 +76,58 @@ describe('dipledger record', () => {
   });
 
   const bad: [string, Record<string, unknown>, RegExp][] = [
-    ['9,3 GHz', { points: [{ reference: '9,3 GHz', readings: [{ value: '9.3 GHz', direction: 'up' }, { value: '9.3 GHz', direction: 'down' }] }] }, /points\[0\]\.reference: "9,3 GHz" uses a decimal comma/],
-    ['a missing unit', { points: [{ reference: '9.3', readings: [{ value: '9.3 GHz', direction: 'up' }, { value: '9.3 GHz', direction: 'down' }] }] }, /points\[0\]\.reference: "9.3" has no unit/],
-    ['a reading outside the band', { points: [{ reference: '10 GHz', readings: [{ value: '18 GHz', direction: 'up' }, { value: '10 GHz', direction: 'down' }] }] }, /points\[0\]\.readings\[0\]\.value: "18 GHz" is outside the band/],
+    [
+      '9,3 GHz',
+      {
+        points: [
+          {
+            reference: '9,3 GHz',
+            readings: [
+              { value: '9.3 GHz', direction: 'up' },
+              { value: '9.3 GHz', direction: 'down' },
+            ],
+          },
+        ],
+      },
+      /points\[0\]\.reference: "9,3 GHz" uses a decimal comma/,
+    ],
+    [
+      'a missing unit',
+      {
+        points: [
+          {
+            reference: '9.3',
+            readings: [
+              { value: '9.3 GHz', direction: 'up' },
+              { value: '9.3 GHz', direction: 'down' },
+            ],
+          },
+        ],
+      },
+      /points\[0\]\.reference: "9.3" has no unit/,
+    ],
+    [
+      'a reading outside the band',
+      {
+        points: [
+          {
+            reference: '10 GHz',
+            readings: [
+              { value: '18 GHz', direction: 'up' },
+              { value: '10 GHz', direction: 'down' },
+            ],
+          },
+        ],
+      },
+      /points\[0\]\.readings\[0\]\.value: "18 GHz" is outside the band/,
+    ],
     ['a date in the future', { date: '2026-12-24' }, /date: 2026-12-24 is in the future/],
     ['an unknown meter', { meter: 'TW-99' }, /meter: no meter "TW-99"/],
-    ['a lab standard that does not exist', { standards: ['SRC-404'] }, /standards\[0\]: no lab standard "SRC-404"/],
+    [
+      'a lab standard that does not exist',
+      { standards: ['SRC-404'] },
+      /standards\[0\]: no lab standard "SRC-404"/,
+    ],
   ];
   for (const [name, change, message] of bad) {
     it(`exits 2 on ${name} and leaves the lab file byte-for-byte unchanged`, async () => {
@@ -106,11 +160,17 @@ describe('dipledger record', () => {
 describe('the installed command', () => {
   it('runs through bin/dipledger.mjs', () => {
     const bin = path.resolve('bin/dipledger.mjs');
-    const out = execFileSync(process.execPath, [bin, 'air', '--temp', '20', '--rh', '50', '--pressure', '1013.25', '--json'], {
+    const out = execFileSync(
+      process.execPath,
+      [bin, 'air', '--temp', '20', '--rh', '50', '--pressure', '1013.25', '--json'],
+      {
+        encoding: 'utf8',
+      },
+    );
+    expect(JSON.parse(out)).toHaveProperty('refractiveIndex');
+    const bad = spawnSync(process.execPath, [bin, '--db', '/nonexistent/dir/lab.dipledger', 'refs'], {
       encoding: 'utf8',
     });
-    expect(JSON.parse(out)).toHaveProperty('refractiveIndex');
-    const bad = spawnSync(process.execPath, [bin, '--db', '/nonexistent/dir/lab.dipledger', 'refs'], { encoding: 'utf8' });
     expect(bad.status).toBe(2);
     expect(bad.stderr).toMatch(/no lab file/);
   });

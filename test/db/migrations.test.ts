@@ -23,8 +23,21 @@ describe('migrations', () => {
     expect(db.pragma('application_id', { simple: true })).toBe(APPLICATION_ID);
     const applied = db.prepare('SELECT version, name FROM schema_migration ORDER BY version').all();
     expect(applied).toEqual(MIGRATIONS.map((m) => ({ version: m.version, name: m.name })));
-    const tables = (db.prepare("SELECT name FROM sqlite_master WHERE type = 'table'").all() as { name: string }[]).map((t) => t.name);
-    for (const t of ['lab', 'meter', 'standard', 'standard_certificate', 'check_event', 'check_revision', 'check_point', 'reading', 'person', 'audit_entry']) {
+    const tables = (
+      db.prepare("SELECT name FROM sqlite_master WHERE type = 'table'").all() as { name: string }[]
+    ).map((t) => t.name);
+    for (const t of [
+      'lab',
+      'meter',
+      'standard',
+      'standard_certificate',
+      'check_event',
+      'check_revision',
+      'check_point',
+      'reading',
+      'person',
+      'audit_entry',
+    ]) {
       expect(tables).toContain(t);
     }
     expect(db.pragma('foreign_keys', { simple: true })).toBe(1);
@@ -35,7 +48,9 @@ describe('migrations', () => {
     const file = path.join(tmp(), 'lab.dipledger');
     openLabDb(file, { create: true }).close();
     const again = openLabDb(file);
-    expect((again.prepare('SELECT count(*) AS n FROM schema_migration').get() as { n: number }).n).toBe(LATEST_VERSION);
+    expect((again.prepare('SELECT count(*) AS n FROM schema_migration').get() as { n: number }).n).toBe(
+      LATEST_VERSION,
+    );
     expect(again.pragma('journal_mode', { simple: true })).toBe('wal');
     expect(again.pragma('busy_timeout', { simple: true })).toBe(5000);
     again.close();
@@ -98,7 +113,9 @@ describe('append-only records (second line behind the API)', () => {
     const db = openLabDb(file);
     // Signing arrives with the records work; here the state is set directly to exercise the trigger.
     db.prepare("UPDATE check_revision SET state = 'signed'").run();
-    expect(() => db.prepare('UPDATE check_revision SET remarks = ?').run('edited later')).toThrow(/never changed/);
+    expect(() => db.prepare('UPDATE check_revision SET remarks = ?').run('edited later')).toThrow(
+      /never changed/,
+    );
     expect(() => db.prepare('UPDATE check_point SET error_hz = 0').run()).toThrow(/never changed/);
     expect(() => db.prepare('UPDATE reading SET value = 1').run()).toThrow(/never changed/);
     expect(() => db.prepare('DELETE FROM reading').run()).toThrow(/never deleted/);

@@ -13,12 +13,18 @@ import {
 import type { ChartPoint } from '../../app/engine/model';
 
 // A linear chart: 12 GHz at 0 div falling 80 MHz per division to 8 GHz at 50 div.
-const linear: ChartPoint[] = [0, 10, 20, 30, 40, 50].map((d) => ({ divisions: d, frequencyHz: 12e9 - 80e6 * d }));
+const linear: ChartPoint[] = [0, 10, 20, 30, 40, 50].map((d) => ({
+  divisions: d,
+  frequencyHz: 12e9 - 80e6 * d,
+}));
 
 // A cylindrical-cavity-like chart (f^2 = A + C/(d - d0)^2, the TE011 form in DESIGN.md 4), read
 // at every division from 0 to 50: 7.75 GHz falling to 6.37 GHz, curving most at the start.
 const cavityLaw = (d: number): number => Math.sqrt(4e19 + 2e21 / (d + 10) ** 2);
-const cavity: ChartPoint[] = Array.from({ length: 51 }, (_, d) => ({ divisions: d, frequencyHz: cavityLaw(d) }));
+const cavity: ChartPoint[] = Array.from({ length: 51 }, (_, d) => ({
+  divisions: d,
+  frequencyHz: cavityLaw(d),
+}));
 
 describe('chart validation', () => {
   it('refuses fewer than 2 points', () => {
@@ -35,8 +41,18 @@ describe('chart validation', () => {
     ];
     expect(chartProblem(turn)).toContain('not monotone');
     expect(() => createChart(turn)).toThrow(/not monotone/);
-    expect(chartProblem([{ divisions: 0, frequencyHz: 9e9 }, { divisions: 0, frequencyHz: 9.1e9 }])).toContain('two points at 0');
-    expect(chartProblem([{ divisions: 0, frequencyHz: 9e9 }, { divisions: 1, frequencyHz: 9e9 }])).toContain('strictly monotone');
+    expect(
+      chartProblem([
+        { divisions: 0, frequencyHz: 9e9 },
+        { divisions: 0, frequencyHz: 9.1e9 },
+      ]),
+    ).toContain('two points at 0');
+    expect(
+      chartProblem([
+        { divisions: 0, frequencyHz: 9e9 },
+        { divisions: 1, frequencyHz: 9e9 },
+      ]),
+    ).toContain('strictly monotone');
   });
 
   it('sorts the points by divisions', () => {
@@ -94,7 +110,10 @@ describe('interpolation', () => {
 // Random strictly monotone charts: increasing divisions, frequencies stepping one way.
 const monotoneChart = fc
   .tuple(
-    fc.array(fc.tuple(fc.double({ min: 0.1, max: 10, noNaN: true }), fc.double({ min: 1e6, max: 5e8, noNaN: true })), { minLength: 2, maxLength: 12 }),
+    fc.array(
+      fc.tuple(fc.double({ min: 0.1, max: 10, noNaN: true }), fc.double({ min: 1e6, max: 5e8, noNaN: true })),
+      { minLength: 2, maxLength: 12 },
+    ),
     fc.boolean(),
     fc.double({ min: 1e9, max: 5e10, noNaN: true }),
   )
@@ -152,7 +171,10 @@ describe('properties (fast-check)', () => {
         const f = frequencyAtDivisions(chart, d);
         const back = divisionsAtFrequency(chart, f);
         // Where the curve is flat in frequency, d is fixed only to the frequency resolution.
-        return Math.abs(frequencyAtDivisions(chart, back) - f) <= 1e-6 * Math.abs(f) * 1e-6 || Math.abs(back - d) < 1e-9;
+        return (
+          Math.abs(frequencyAtDivisions(chart, back) - f) <= 1e-6 * Math.abs(f) * 1e-6 ||
+          Math.abs(back - d) < 1e-9
+        );
       }),
       { numRuns: 300 },
     );

@@ -1,6 +1,11 @@
 // Correction to reference conditions (app/engine/correction.ts, thermal.ts).
 import { describe, expect, it } from 'vitest';
-import { correctToReference, correctedFrequencyHz, correctionSensitivities, type CorrectionInputs } from '../../app/engine/correction';
+import {
+  correctToReference,
+  correctedFrequencyHz,
+  correctionSensitivities,
+  type CorrectionInputs,
+} from '../../app/engine/correction';
 import { refractiveIndex } from '../../app/engine/refractivity';
 import { resonanceShiftFirstOrderPpm } from '../../app/engine/thermal';
 
@@ -43,7 +48,12 @@ describe('air correction', () => {
   });
 
   it('the two parts multiply to the whole correction exactly', () => {
-    const inputs: CorrectionInputs = { temperatureC: 26.5, pressureHpa: 990, humidityPct: 70, alphaPerK: brass };
+    const inputs: CorrectionInputs = {
+      temperatureC: 26.5,
+      pressureHpa: 990,
+      humidityPct: 70,
+      alphaPerK: brass,
+    };
     const r = correctToReference(33.1e9, inputs, reference);
     const rebuilt = 33.1e9 * (1 + r.thermalCorrectionPpm * 1e-6) * (1 + r.airCorrectionPpm * 1e-6);
     expect(rebuilt / r.correctedHz - 1).toBeCloseTo(0, 14);
@@ -51,10 +61,16 @@ describe('air correction', () => {
 });
 
 describe('sensitivities by finite difference of f_c = f_read / g', () => {
-  const inputs: CorrectionInputs = { temperatureC: 23.4, pressureHpa: 1001.7, humidityPct: 41, alphaPerK: brass };
+  const inputs: CorrectionInputs = {
+    temperatureC: 23.4,
+    pressureHpa: 1001.7,
+    humidityPct: 41,
+    alphaPerK: brass,
+  };
   const f = 9.3e9;
   const s = correctionSensitivities(f, inputs, reference);
-  const fcAt = (change: Partial<CorrectionInputs>) => correctedFrequencyHz(f, { ...inputs, ...change }, reference);
+  const fcAt = (change: Partial<CorrectionInputs>) =>
+    correctedFrequencyHz(f, { ...inputs, ...change }, reference);
 
   it('temperature includes expansion and the air index', () => {
     const fd = (fcAt({ temperatureC: 23.45 }) - fcAt({ temperatureC: 23.35 })) / 0.1;
@@ -64,9 +80,15 @@ describe('sensitivities by finite difference of f_c = f_read / g', () => {
   });
 
   it('pressure, humidity and alpha', () => {
-    expect(s.dPressureHzPerHpa / ((fcAt({ pressureHpa: 1002.2 }) - fcAt({ pressureHpa: 1001.2 })) / 1)).toBeCloseTo(1, 5);
-    expect(s.dHumidityHzPerPct / ((fcAt({ humidityPct: 41.5 }) - fcAt({ humidityPct: 40.5 })) / 1)).toBeCloseTo(1, 5);
-    expect(s.dAlphaHzPerPerK / ((fcAt({ alphaPerK: brass + 1e-7 }) - fcAt({ alphaPerK: brass - 1e-7 })) / 2e-7)).toBeCloseTo(1, 5);
+    expect(
+      s.dPressureHzPerHpa / ((fcAt({ pressureHpa: 1002.2 }) - fcAt({ pressureHpa: 1001.2 })) / 1),
+    ).toBeCloseTo(1, 5);
+    expect(
+      s.dHumidityHzPerPct / ((fcAt({ humidityPct: 41.5 }) - fcAt({ humidityPct: 40.5 })) / 1),
+    ).toBeCloseTo(1, 5);
+    expect(
+      s.dAlphaHzPerPerK / ((fcAt({ alphaPerK: brass + 1e-7 }) - fcAt({ alphaPerK: brass - 1e-7 })) / 2e-7),
+    ).toBeCloseTo(1, 5);
     expect(s.dReading).toBeCloseTo(fcAt({}) / f, 15);
   });
 });

@@ -75,7 +75,17 @@ describe('direct-reading meter at 9.3 GHz, bench 3 K warm', () => {
 
   it('has every budget line, with hand-checkable repeatability, hysteresis, resolution, setting, reference', () => {
     const keys = r.budget.contributions.map((c) => c.key);
-    expect(keys).toEqual(['reference', 'repeatability', 'resolution', 'hysteresis', 'setting', 'temperature', 'expansion', 'pressure', 'humidity']);
+    expect(keys).toEqual([
+      'reference',
+      'repeatability',
+      'resolution',
+      'hysteresis',
+      'setting',
+      'temperature',
+      'expansion',
+      'pressure',
+      'humidity',
+    ]);
     // Reference: 0.1 ppm (k = 2) of 9.3 GHz = 930 Hz expanded, 465 Hz standard, sensitivity -1.
     expect(line(r, 'reference').standardUncertainty).toBeCloseTo(465, 9);
     expect(line(r, 'reference').sensitivity).toBe(-1);
@@ -90,7 +100,10 @@ describe('direct-reading meter at 9.3 GHz, bench 3 K warm', () => {
     // Hysteresis: means differ by 2 MHz, half-width 1 MHz, u = 577.35 kHz.
     expect(line(r, 'hysteresis').standardUncertainty).toBeCloseTo(1e6 / Math.sqrt(3), 3);
     // Setting: half-width 0.1 * 9.303333 GHz / 2000 = 465.17 kHz.
-    expect(line(r, 'setting').standardUncertainty).toBeCloseTo((0.1 * r.indicatedHz) / 2000 / Math.sqrt(3), 3);
+    expect(line(r, 'setting').standardUncertainty).toBeCloseTo(
+      (0.1 * r.indicatedHz) / 2000 / Math.sqrt(3),
+      3,
+    );
     // Indication lines pass through 1/g.
     expect(rep.sensitivity).toBeCloseTo(r.correctedHz / r.indicatedHz, 14);
   });
@@ -119,18 +132,33 @@ describe('budget sensitivities by finite difference of the whole evaluation', ()
     evaluatePoint(spec, conditions, point, { kind: 'simple' }).errorHz;
 
   it('temperature, pressure, humidity, expansion coefficient', () => {
-    const dT = (errorWith(directSpec, { ...warmBench, temperatureC: 23.01 }) - errorWith(directSpec, { ...warmBench, temperatureC: 22.99 })) / 0.02;
+    const dT =
+      (errorWith(directSpec, { ...warmBench, temperatureC: 23.01 }) -
+        errorWith(directSpec, { ...warmBench, temperatureC: 22.99 })) /
+      0.02;
     expect(line(base, 'temperature').sensitivity / dT).toBeCloseTo(1, 4);
-    const dP = (errorWith(directSpec, { ...warmBench, pressureHpa: 1014.25 }) - errorWith(directSpec, { ...warmBench, pressureHpa: 1012.25 })) / 2;
+    const dP =
+      (errorWith(directSpec, { ...warmBench, pressureHpa: 1014.25 }) -
+        errorWith(directSpec, { ...warmBench, pressureHpa: 1012.25 })) /
+      2;
     expect(line(base, 'pressure').sensitivity / dP).toBeCloseTo(1, 4);
-    const dH = (errorWith(directSpec, { ...warmBench, humidityPct: 51 }) - errorWith(directSpec, { ...warmBench, humidityPct: 49 })) / 2;
+    const dH =
+      (errorWith(directSpec, { ...warmBench, humidityPct: 51 }) -
+        errorWith(directSpec, { ...warmBench, humidityPct: 49 })) /
+      2;
     expect(line(base, 'humidity').sensitivity / dH).toBeCloseTo(1, 4);
-    const dA = (errorWith({ ...directSpec, alphaPerK: 19.1e-6 }, warmBench) - errorWith({ ...directSpec, alphaPerK: 18.9e-6 }, warmBench)) / 0.2e-6;
+    const dA =
+      (errorWith({ ...directSpec, alphaPerK: 19.1e-6 }, warmBench) -
+        errorWith({ ...directSpec, alphaPerK: 18.9e-6 }, warmBench)) /
+      0.2e-6;
     expect(line(base, 'expansion').sensitivity / dA).toBeCloseTo(1, 4);
   });
 
   it('indication lines: shifting every reading by 1 kHz moves the error by 1 kHz / g', () => {
-    const shifted = { ...directPoint, readings: directPoint.readings.map((x) => ({ ...x, value: x.value + 1e3 })) };
+    const shifted = {
+      ...directPoint,
+      readings: directPoint.readings.map((x) => ({ ...x, value: x.value + 1e3 })),
+    };
     const d = (errorWith(directSpec, warmBench, shifted) - base.errorHz) / 1e3;
     expect(line(base, 'resolution').sensitivity / d).toBeCloseTo(1, 5);
   });
@@ -169,7 +197,7 @@ describe('divisions meter through its chart', () => {
     expect(r.thermalCorrectionPpm).toBe(0);
     expect(r.airCorrectionPpm).toBe(0);
     expect(r.errorHz).toBeCloseTo(1.6e6, 0);
-    expect(r.errorPpm).toBeCloseTo(1.6e6 / 9.3e9 * 1e6, 6);
+    expect(r.errorPpm).toBeCloseTo((1.6e6 / 9.3e9) * 1e6, 6);
   });
 
   it('dial lines in divisions, converted by the chart slope', () => {
@@ -198,14 +226,19 @@ describe('divisions meter through its chart', () => {
   });
 
   it('refuses a reading off the chart, naming it', () => {
-    const bad = { ...divisionsPoint, readings: [...divisionsPoint.readings, { value: 51, direction: 'up' as const }] };
+    const bad = {
+      ...divisionsPoint,
+      readings: [...divisionsPoint.readings, { value: 51, direction: 'up' as const }],
+    };
     expect(() => evaluatePoint(divisionsSpec, atReference, bad, { kind: 'simple' })).toThrow(
       "point.readings[6]: 51 divisions is outside the chart's range 0 to 50 divisions",
     );
   });
 
   it('refuses a divisions meter without a chart', () => {
-    expect(() => evaluatePoint({ ...divisionsSpec, chart: undefined }, atReference, divisionsPoint, { kind: 'simple' })).toThrow(/needs a chart/);
+    expect(() =>
+      evaluatePoint({ ...divisionsSpec, chart: undefined }, atReference, divisionsPoint, { kind: 'simple' }),
+    ).toThrow(/needs a chart/);
   });
 });
 
@@ -220,7 +253,13 @@ describe('fewer readings', () => {
   });
 
   it('one reading per direction: repeatability from the range, rectangular, with a note', () => {
-    const point = { ...directPoint, readings: [{ value: 9.302e9, direction: 'up' as const }, { value: 9.305e9, direction: 'down' as const }] };
+    const point = {
+      ...directPoint,
+      readings: [
+        { value: 9.302e9, direction: 'up' as const },
+        { value: 9.305e9, direction: 'down' as const },
+      ],
+    };
     const r = evaluatePoint(directSpec, warmBench, point, { kind: 'simple' });
     const rep = line(r, 'repeatability');
     expect(rep.distribution).toBe('rectangular');
@@ -242,12 +281,21 @@ describe('tolerance', () => {
 
 describe('defensive validation', () => {
   it('throws a clear error for non-finite inputs', () => {
-    expect(() => evaluatePoint(directSpec, { ...warmBench, temperatureC: Number.NaN }, directPoint, { kind: 'simple' })).toThrow(
-      'conditions.temperatureC must be a finite number (got NaN)',
+    expect(() =>
+      evaluatePoint(directSpec, { ...warmBench, temperatureC: Number.NaN }, directPoint, { kind: 'simple' }),
+    ).toThrow('conditions.temperatureC must be a finite number (got NaN)');
+    const badReading = {
+      ...directPoint,
+      readings: [{ value: Number.POSITIVE_INFINITY, direction: 'up' as const }],
+    };
+    expect(() => evaluatePoint(directSpec, warmBench, badReading, { kind: 'simple' })).toThrow(
+      'point.readings[0].value must be a finite number',
     );
-    const badReading = { ...directPoint, readings: [{ value: Number.POSITIVE_INFINITY, direction: 'up' as const }] };
-    expect(() => evaluatePoint(directSpec, warmBench, badReading, { kind: 'simple' })).toThrow('point.readings[0].value must be a finite number');
-    expect(() => evaluatePoint(directSpec, warmBench, { ...directPoint, readings: [] }, { kind: 'simple' })).toThrow(/at least one reading/);
-    expect(() => evaluatePoint({ ...directSpec, loadedQ: 0 }, warmBench, directPoint, { kind: 'simple' })).toThrow('spec.loadedQ must be positive');
+    expect(() =>
+      evaluatePoint(directSpec, warmBench, { ...directPoint, readings: [] }, { kind: 'simple' }),
+    ).toThrow(/at least one reading/);
+    expect(() =>
+      evaluatePoint({ ...directSpec, loadedQ: 0 }, warmBench, directPoint, { kind: 'simple' }),
+    ).toThrow('spec.loadedQ must be positive');
   });
 });

@@ -50,7 +50,8 @@ describe('ILAC-G8:09/2019 decision zones at their exact boundaries', () => {
   const T = 1000;
   const U = 250;
   const base = { toleranceHz: T, combinedHz: 125, expandedHz: U, readingHz: 1e9 };
-  const verdict = (rule: DecisionRule, errorHz: number): Verdict => decide(rule, { ...base, errorHz }).verdict;
+  const verdict = (rule: DecisionRule, errorHz: number): Verdict =>
+    decide(rule, { ...base, errorHz }).verdict;
   const justAbove = (x: number) => x + 1e-9;
 
   it('4.2.1 simple acceptance (w = 0): pass up to and including T, fail above', () => {

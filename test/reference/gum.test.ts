@@ -1,12 +1,27 @@
 // External-reference checks of the GUM budget arithmetic (JCGM 100:2008).
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
-import { combine, makeContribution, normalFromCertificate, rectangular, typeA } from '../../app/engine/budget';
+import {
+  combine,
+  makeContribution,
+  normalFromCertificate,
+  rectangular,
+  typeA,
+} from '../../app/engine/budget';
 import { coverageFactor } from '../../app/engine/distributions';
 import type { Contribution } from '../../app/engine/model';
 
 function relativeLine(key: Contribution['key'], uPct: number, dof: number): Contribution {
-  return makeContribution({ key, label: key, type: 'A', distribution: 't', unit: '%', standardUncertainty: uPct, sensitivity: 1, dof });
+  return makeContribution({
+    key,
+    label: key,
+    type: 'A',
+    distribution: 't',
+    unit: '%',
+    standardUncertainty: uPct,
+    sensitivity: 1,
+    dof,
+  });
 }
 
 function roundTo(value: number, significant: number): number {
@@ -17,7 +32,10 @@ describe('JCGM 100:2008 G.4.1 example (Welch-Satterthwaite)', () => {
   // JCGM 100:2008 G.4.1, EXAMPLE (numbers from memory, not verified by search): Y = b X1 X2 X3,
   // relative standard uncertainties 0.25 % (N = 10, nu = 9), 0.57 % (N = 5, nu = 4) and
   // 0.82 % (N = 15, nu = 14); u_c/y = 1.03 %, nu_eff = 19.0, t_95(19) = 2.09, U_95 = 2.2 %.
-  const budget95 = combine([relativeLine('repeatability', 0.25, 9), relativeLine('setting', 0.57, 4), relativeLine('fit', 0.82, 14)], 0.95);
+  const budget95 = combine(
+    [relativeLine('repeatability', 0.25, 9), relativeLine('setting', 0.57, 4), relativeLine('fit', 0.82, 14)],
+    0.95,
+  );
 
   it('combines to u_c = 1.03 %', () => {
     expect(roundTo(budget95.combinedHz, 3)).toBe(1.03);
@@ -84,7 +102,11 @@ describe('GUM budget helpers and combination', () => {
   });
 
   it('from a certificate: u = U/k (JCGM 100:2008 4.3.3)', () => {
-    const line = normalFromCertificate({ key: 'reference', label: 'ref', unit: 'Hz', sensitivity: -1 }, 93, 2);
+    const line = normalFromCertificate(
+      { key: 'reference', label: 'ref', unit: 'Hz', sensitivity: -1 },
+      93,
+      2,
+    );
     expect(line.standardUncertainty).toBe(46.5);
     expect(line.contributionHz).toBe(46.5);
   });
@@ -109,7 +131,10 @@ describe('GUM budget helpers and combination', () => {
     // Common practice: a known property of the Welch-Satterthwaite formula for positive terms.
     fc.assert(
       fc.property(
-        fc.array(fc.tuple(fc.double({ min: 0.01, max: 100, noNaN: true }), fc.integer({ min: 1, max: 50 })), { minLength: 1, maxLength: 8 }),
+        fc.array(fc.tuple(fc.double({ min: 0.01, max: 100, noNaN: true }), fc.integer({ min: 1, max: 50 })), {
+          minLength: 1,
+          maxLength: 8,
+        }),
         (terms) => {
           const b = combine(terms.map(([u, nu]) => relativeLine('fit', u, nu)));
           const nus = terms.map(([, nu]) => nu);

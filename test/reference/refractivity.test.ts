@@ -60,7 +60,10 @@ describe('ITU-R P.453-14 refractivity', () => {
     expect(d.dNdHumidityPerPct).toBeGreaterThan(0.9);
     expect(d.dNdHumidityPerPct).toBeLessThan(1.1);
     // Dry air: dN/dT = -77.6 P / T^2.
-    expect(refractivityPartials(20, 1013.25, 0).dNdTemperaturePerK).toBeCloseTo((-77.6 * 1013.25) / 293.15 ** 2, 5);
+    expect(refractivityPartials(20, 1013.25, 0).dNdTemperaturePerK).toBeCloseTo(
+      (-77.6 * 1013.25) / 293.15 ** 2,
+      5,
+    );
   });
 
   it('partial derivatives agree with wide finite differences of the independent transcription', () => {

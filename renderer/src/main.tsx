@@ -1,0 +1,15 @@
+// Renderer entry: mounts the register page on the lab client chosen for this window.
+import { StrictMode } from 'react';
+import { createRoot } from 'react-dom/client';
+import { labClient } from './api';
+import { RegisterPage } from './RegisterPage';
+import './styles.css';
+
+const root = document.getElementById('root');
+if (!root) throw new Error('index.html has no #root element');
+const api = labClient();
+createRoot(root).render(
+  <StrictMode>
+    <RegisterPage api={api} />
+  </StrictMode>,
+);

@@ -1,0 +1,121 @@
+// End to end in browser mode: the built renderer served by the loopback server over a fake
+// lab, driven in Debian's Chromium. Leaves test-output/register.png to look at.
+import { existsSync } from 'node:fs';
+import { mkdir, mkdtemp, rm } from 'node:fs/promises';
+import os from 'node:os';
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { chromium } from 'playwright-core';
+import type { Browser, Page } from 'playwright-core';
+import { build } from 'vite';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { startServer } from '../../app/server/server';
+import type { RunningServer } from '../../app/server/server';
+import { DEMO_LAB, DEMO_ROWS, fakeLabApi } from './fixtures/fakeLab';
+import { RegisterPage } from './pages/RegisterPage';
+
+// Debian's Chromium; never a downloaded browser. The variable exists to try the skip path.
+const CHROMIUM = process.env.DIPLEDGER_CHROMIUM ?? '/usr/bin/chromium';
+const repoRoot = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..', '..');
+const outputDir = path.join(repoRoot, 'test-output');
+const haveChromium = existsSync(CHROMIUM);
+if (!haveChromium)
+  console.warn(`register e2e skipped: ${CHROMIUM} not found (CI installs it: apt-get install chromium)`);
+
+describe.skipIf(!haveChromium)(
+  `register page in Chromium${haveChromium ? '' : ` (skipped: ${CHROMIUM} missing)`}`,
+  () => {
+    let distDir: string;
+    let server: RunningServer;
+    let browser: Browser;
+    let page: Page;
+    let register: RegisterPage;
+    const problems: string[] = [];
+
+    beforeAll(async () => {
+      // A fresh build in a temporary folder: never a stale renderer/dist, never racing another build.
+      distDir = await mkdtemp(path.join(os.tmpdir(), 'dipledger-dist-'));
+      await build({
+        configFile: path.join(repoRoot, 'vite.config.ts'),
+        logLevel: 'warn',
+        build: { outDir: distDir, emptyOutDir: true },
+      });
+      server = await startServer({ api: fakeLabApi(), staticDir: distDir });
+      browser = await chromium.launch({
+        executablePath: CHROMIUM,
+        args: [
+          '--headless',
+          '--no-sandbox',
+          '--disable-gpu',
+          '--disable-quic',
+          '--no-first-run',
+          '--disable-background-networking',
+          '--disable-component-update',
+          '--disable-sync',
+        ],
+      });
+      page = await browser.newPage({ viewport: { width: 1280, height: 860 }, colorScheme: 'light' });
+      // Console errors include CSP violations, which would mean the page is half broken.
+      page.on('console', (m) => m.type() === 'error' && problems.push(m.text()));
+      page.on('pageerror', (e) => problems.push(e.message));
+      page.on('response', (r) => r.status() >= 400 && problems.push(`HTTP ${r.status()} ${r.url()}`));
+      register = new RegisterPage(page);
+      await register.open(server.url);
+    }, 120_000);
+
+    afterAll(async () => {
+      await browser?.close();
+      await server?.close();
+      if (distDir) await rm(distDir, { recursive: true, force: true });
+    });
+
+    it('shows the lab name, the cautions and every meter', async () => {
+      expect(await register.heading.innerText()).toBe(DEMO_LAB.name);
+      const cautions = await register.cautions.innerText();
+      expect(cautions).toContain('Maximum input power');
+      expect(cautions).toContain('open waveguide');
+      expect(cautions).toContain('quality system');
+      expect(await register.assetIds()).toEqual(DEMO_ROWS.map((r) => r.assetId));
+    });
+
+    it('writes bands with units, states and verdicts in words, due in days', async () => {
+      expect(await register.cell('WM-003', 'Band')).toBe('8.2–12.4 GHz');
+      expect(await register.cell('WM-007', 'Band')).toBe('75–110 GHz');
+      expect(await register.cell('WM-004', 'State')).toContain('Quarantined');
+      expect(await register.cell('WM-004', 'Last verdict')).toContain('Fail');
+      expect(await register.cell('WM-002', 'Last verdict')).toContain('Conditional pass');
+      expect(await register.cell('WM-005', 'Last verdict')).toBe('Not checked yet');
+      expect(await register.cell('WM-003', 'Days to due')).toContain('21 d overdue');
+      expect(await register.cell('WM-001', 'Days to due')).toBe('90 d');
+      expect(await register.cell('WM-002', 'Days to due')).toBe('12 d, soon');
+      expect(await register.cell('WM-007', 'Days to due')).toBe('not in use');
+      expect(await register.alignment('WM-003', 'Days to due')).toBe('right');
+      expect(await register.summary.innerText()).toMatch(/7 meters\s+2 overdue\s+1 due within 30 d/);
+    });
+
+    it('filters by asset id or description', async () => {
+      await register.filter('ka-band');
+      await expect.poll(() => register.assetIds()).toEqual(['WM-005']);
+      await register.filter('wm-00');
+      await expect.poll(() => register.assetIds()).toHaveLength(DEMO_ROWS.length);
+      await register.filter('dropped');
+      await expect.poll(() => register.assetIds()).toEqual(['WM-004']);
+      expect(await register.summary.innerText()).toContain('Showing 1 of 7 meters');
+      await register.filter('no such meter');
+      await expect.poll(() => register.assetIds()).toEqual([]);
+      expect(await register.emptyMessage.innerText()).toContain('No meter matches');
+      await register.filter('');
+      await expect.poll(() => register.assetIds()).toHaveLength(DEMO_ROWS.length);
+    });
+
+    it('loads without console errors and leaves a screenshot', async () => {
+      await mkdir(outputDir, { recursive: true });
+      await register.search.blur();
+      // The whole table must fit a 1280 px window: no sideways scrolling to see days to due.
+      const overflow = await page.locator('.table-wrap').evaluate((el) => el.scrollWidth - el.clientWidth);
+      expect(overflow).toBeLessThanOrEqual(0);
+      await page.screenshot({ path: path.join(outputDir, 'register.png'), fullPage: true });
+      expect(problems).toEqual([]);
+    });
+  },
+);
