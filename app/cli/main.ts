@@ -95,7 +95,7 @@ function budgetText(p: PointResult, referenceHz: number): string {
     c.type,
     c.distribution,
     `${fmt(c.standardUncertainty)} ${c.unit}`,
-    `${fmt(c.sensitivity)} Hz/${c.unit}`,
+    sensitivityText(c.sensitivity, c.unit),
     fmt(c.contributionHz),
     Number.isFinite(c.dof) ? String(Math.round(c.dof * 10) / 10) : 'inf',
   ]);
@@ -105,10 +105,10 @@ function budgetText(p: PointResult, referenceHz: number): string {
     `reference frequency  ${formatFrequency(referenceHz, 10)}`,
     `indication           ${formatFrequency(p.indicatedHz, 10)}`,
     `corrected to ref.    ${formatFrequency(p.correctedHz, 10)}  (thermal ${fmtPpm(p.thermalCorrectionPpm)}, air ${fmtPpm(p.airCorrectionPpm)})`,
-    `error                ${fmt(p.errorHz)} Hz  (${fmtPpm(p.errorPpm)})`,
-    `combined u_c         ${fmt(b.combinedHz)} Hz   effective dof ${Number.isFinite(b.effectiveDof) ? b.effectiveDof.toFixed(1) : 'inf'}`,
-    `expanded U           ${fmt(b.expandedHz)} Hz  (k = ${b.coverageFactor.toFixed(2)}, p = ${(b.coverageProbability * 100).toFixed(2)} %; ${fmtPpm(p.expandedPpm)})`,
-    `tolerance            +/- ${fmt(p.decision.toleranceHz)} Hz   acceptance limit ${fmt(p.decision.acceptanceLimitHz)} Hz`,
+    `error                ${signedHz(p.errorHz)}  (${fmtPpm(p.errorPpm)})`,
+    `combined u_c         ${formatFrequency(b.combinedHz, 4)}   effective dof ${Number.isFinite(b.effectiveDof) ? b.effectiveDof.toFixed(1) : 'inf'}`,
+    `expanded U           ${formatFrequency(b.expandedHz, 4)}  (k = ${b.coverageFactor.toFixed(2)}, p = ${(b.coverageProbability * 100).toFixed(2)} %; ${p.expandedPpm.toFixed(1)} ppm)`,
+    `tolerance            +/- ${formatFrequency(p.decision.toleranceHz, 4)}   acceptance limit ${formatFrequency(p.decision.acceptanceLimitHz, 4)}`,
     `TUR                  ${p.decision.tur.toFixed(2)}`,
     `P(conformity)        ${(p.decision.probabilityOfConformity * 100).toFixed(2)} %  (JCGM 106)`,
     `decision rule        ${ruleWords(p.decision.rule)}`,
@@ -136,6 +136,15 @@ function fmt(x: number): string {
   const a = Math.abs(x);
   return a >= 1e4 || a < 1e-2 ? x.toExponential(3) : x.toPrecision(4);
 }
+const signedHz = (x: number) => `${x < 0 ? '-' : '+'}${formatFrequency(Math.abs(x), 5)}`;
+
+/** Sensitivity with its unit: Hz of error per unit of the input quantity. */
+function sensitivityText(c: number, unit: string): string {
+  if (unit === 'Hz') return fmt(c);
+  if (unit === '1/K') return `${fmt(c)} Hz K`;
+  return `${fmt(c)} Hz/${unit}`;
+}
+
 const fmtPpm = (x: number) => `${x >= 0 ? '+' : ''}${x.toFixed(1)} ppm`;
 
 function checkText(c: CheckRecord): string {

@@ -12,12 +12,14 @@ export type DivisionsParse = { ok: true; divisions: number } | { ok: false; mess
 // Keys are lower-case because units are matched case-insensitively. In this domain "mhz" always
 // means megahertz: a millihertz is meaningless for a cavity meter between 1 GHz and 110 GHz, and
 // people type "9300 mhz" or "9300 MHZ" meaning MHz. The same holds for "ghz", "khz", "thz".
+// Values are powers of ten: the prefix is applied to the decimal text, not by multiplying a
+// binary float, so "8.2 GHz" is exactly the double nearest 8.2e9 (8.2 * 1e9 is not).
 const FREQUENCY_UNITS: Readonly<Record<string, number>> = {
-  hz: 1,
-  khz: 1e3,
-  mhz: 1e6,
-  ghz: 1e9,
-  thz: 1e12,
+  hz: 0,
+  khz: 3,
+  mhz: 6,
+  ghz: 9,
+  thz: 12,
 };
 
 /** A bare number (no unit) is taken as hertz only from here up: below it "9.3" could be GHz. */
@@ -41,7 +43,7 @@ function splitNumber(
   raw: string,
   field: string,
   expected: string,
-): { ok: true; value: number; unit: string } | { ok: false; message: string } {
+): { ok: true; value: number; text: string; unit: string } | { ok: false; message: string } {
   const text = raw.trim();
   const shown = quote(raw);
   if (text === '') return { ok: false, message: `${field}: ${shown} is empty; ${expected}` };
@@ -69,7 +71,7 @@ function splitNumber(
   if (!Number.isFinite(value)) {
     return { ok: false, message: `${field}: ${shown} is not a finite number; ${expected}` };
   }
-  return { ok: true, value, unit: (match[2] ?? '').toLowerCase() };
+  return { ok: true, value, text: match[1] ?? '', unit: (match[2] ?? '').toLowerCase() };
 }
 
 function checkPositiveHz(hz: number, shown: string, field: string): FrequencyParse {
@@ -107,14 +109,15 @@ export function parseFrequencyHz(input: string | number, field: string): Frequen
   if (!split.ok) return split;
   const shown = quote(input);
   if (split.unit === '') return bareNumber(split.value, shown, field);
-  const factor = FREQUENCY_UNITS[split.unit];
-  if (factor === undefined) {
+  const power = FREQUENCY_UNITS[split.unit];
+  if (power === undefined) {
     return {
       ok: false,
       message: `${field}: ${shown} has an unknown unit "${split.unit}"; use Hz, kHz, MHz, GHz or THz; ${EXPECTED}`,
     };
   }
-  return checkPositiveHz(split.value * factor, shown, field);
+  const [mantissa = '', exponent = '0'] = split.text.toLowerCase().split('e');
+  return checkPositiveHz(Number(`${mantissa}e${Number(exponent) + power}`), shown, field);
 }
 
 const DIVISION_UNITS = new Set(['', 'div', 'divs', 'division', 'divisions']);

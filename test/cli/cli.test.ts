@@ -175,3 +175,49 @@ describe('the installed command', () => {
     expect(bad.stderr).toMatch(/no lab file/);
   });
 });
+
+describe('the demo lab and the documented examples', () => {
+  it('init --sample, refs --json, and every example in docs/examples works on it', async () => {
+    const dir = mkdtempSync(path.join(tmpdir(), 'dipledger-sample-'));
+    const file = path.join(dir, 'demo.dipledger');
+    const o = io(path.resolve('.'));
+    expect(await runCli(['--db', file, 'init', '--sample'], o)).toBe(0);
+
+    const refs = io(dir);
+    expect(await runCli(['--db', file, '--json', 'refs'], refs)).toBe(0);
+    const rows = decodeJson(refs.stdout.join('\n')) as {
+      assetId: string;
+      minHz: number;
+      maxHz: number;
+      state: string;
+      dueDate: string | null;
+    }[];
+    expect(rows.length).toBeGreaterThanOrEqual(8);
+    expect(rows.length).toBeLessThanOrEqual(12);
+    for (const r of rows) {
+      expect(r.maxHz).toBeGreaterThan(r.minHz);
+      expect(['in-service', 'quarantined', 'withdrawn']).toContain(r.state);
+      if (r.state !== 'withdrawn') expect(r.dueDate).toMatch(/^\d{4}-\d{2}-\d{2}$/);
+    }
+    expect(Math.min(...rows.map((r) => r.minHz))).toBeLessThanOrEqual(2e9);
+    expect(Math.max(...rows.map((r) => r.maxHz))).toBeGreaterThanOrEqual(75e9);
+
+    const due = io(dir);
+    expect(await runCli(['--db', file, '--json', 'due', '--within', '0'], due)).toBe(0);
+    expect((decodeJson(due.stdout.join('\n')) as unknown[]).length).toBeGreaterThanOrEqual(1); // one is overdue
+
+    const record = io(path.resolve('.'));
+    expect(await runCli(['--db', file, 'record', 'docs/examples/check.json', '--require-pass'], record)).toBe(
+      0,
+    );
+    const budget = io(path.resolve('.'));
+    expect(await runCli(['--db', file, 'budget', 'docs/examples/budget.json'], budget)).toBe(0);
+    expect(budget.stdout.join('\n')).toMatch(/Welch|effective dof/);
+    const imp = io(path.resolve('.'));
+    expect(await runCli(['--db', file, 'import', 'docs/examples/history.csv'], imp)).toBe(0);
+    expect(imp.stdout.join('\n')).toMatch(/imported 1 checks/);
+    const show = io(dir);
+    expect(await runCli(['--db', file, 'show', 'CW-101'], show)).toBe(0);
+    expect(show.stdout.join('\n')).toMatch(/2026-11-25/);
+  });
+});

@@ -161,3 +161,14 @@ describe('checkInBand and formatFrequency', () => {
     );
   });
 });
+
+describe('decimal prefixes are applied to the text, not by float multiplication', () => {
+  it('gives the double nearest the written value', () => {
+    // 8.2 * 1e9 === 8199999999.999999 in binary floating point; the parser must not do that.
+    expect(parseFrequencyHz('8.2 GHz', 'f')).toEqual({ ok: true, hz: 8.2e9 });
+    expect(parseFrequencyHz('12.4 GHz', 'f')).toEqual({ ok: true, hz: 12.4e9 });
+    expect(parseFrequencyHz('9300.1 MHz', 'f')).toEqual({ ok: true, hz: 9300.1e6 });
+    expect(parseFrequencyHz('9.3e-3 THz', 'f')).toEqual({ ok: true, hz: 9.3e9 });
+    expect(parseFrequencyHz('0.0082e3 GHz', 'f')).toEqual({ ok: true, hz: 8.2e9 });
+  });
+});
