@@ -97,14 +97,21 @@ export function combine(
 ): Budget {
   let variance = 0;
   let denominator = 0;
+  let smallestDof = Infinity;
   for (const line of contributions) {
     requireFinite(line.contributionHz, `${line.key}: contribution`);
     const ci = line.contributionHz;
     variance += ci * ci;
-    if (ci > 0 && Number.isFinite(line.dof)) denominator += (ci * ci * ci * ci) / line.dof;
+    if (ci > 0 && Number.isFinite(line.dof)) {
+      denominator += (ci * ci * ci * ci) / line.dof;
+      smallestDof = Math.min(smallestDof, line.dof);
+    }
   }
   const combinedHz = Math.sqrt(variance);
-  const effectiveDof = denominator > 0 ? (variance * variance) / denominator : Infinity;
+  // nu_eff is never below the smallest nu_i (Cauchy-Schwarz); clamp so round-off cannot make
+  // 0.9999999999999999 out of 1 and lose the t-factor after truncation.
+  const effectiveDof =
+    denominator > 0 ? Math.max((variance * variance) / denominator, smallestDof) : Infinity;
   const k = coverageFactor(effectiveDof, coverageProbability);
   return {
     contributions: [...contributions],

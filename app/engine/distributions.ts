@@ -35,7 +35,8 @@ export function coverageFactor(dof: number, p: number = DEFAULT_COVERAGE_PROBABI
   if (Number.isNaN(dof)) throw new Error('degrees of freedom is NaN');
   const q = (1 + p) / 2;
   if (dof === Infinity) return normalQuantile(q);
-  const nu = Math.floor(dof);
+  // Truncate, but let a value a rounding error short of an integer count as that integer.
+  const nu = Math.floor(dof + 1e-9);
   if (nu < 1) throw new Error(`degrees of freedom must be at least 1 to find a coverage factor (got ${dof})`);
   return tQuantile(q, nu);
 }

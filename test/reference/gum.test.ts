@@ -146,3 +146,24 @@ describe('GUM budget helpers and combination', () => {
     );
   });
 });
+
+describe('round-off in the effective degrees of freedom', () => {
+  it('keeps nu_eff at the smallest nu_i when every line has the same nu (JCGM 100:2008 G.4.1, eq. G.2b)', () => {
+    // Three equal-dof lines: W-S gives exactly nu in exact arithmetic; floats may give nu - 1e-16.
+    const lines = [0.37, 1.91, 0.05].map((u, i) =>
+      makeContribution({
+        key: 'repeatability',
+        label: `line ${i}`,
+        type: 'A',
+        distribution: 't',
+        unit: 'Hz',
+        standardUncertainty: u,
+        sensitivity: 1,
+        dof: 1,
+      }),
+    );
+    const b = combine(lines);
+    expect(b.effectiveDof).toBeGreaterThanOrEqual(1);
+    expect(b.coverageFactor).toBeCloseTo(13.97, 2); // Table G.2, nu = 1, p = 95.45 %
+  });
+});
