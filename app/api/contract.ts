@@ -179,9 +179,13 @@ export interface DueQuery {
   withinDays: number;
 }
 
-/** Every operation of the product. Inputs are unvalidated `unknown`-shaped data at runtime;
- * the service validates them and rejects with a LabError (see errors.ts). */
-export interface LabApi {
+/** Every operation of the product: the core below and the groups in contract-*.ts files.
+ * Inputs are unvalidated data at runtime; the service validates them and rejects with a
+ * LabError (see errors.ts). */
+export type LabApi = CoreApi;
+
+/** The foundation: register, meters, standards, people, checks, computations, CSV. */
+export interface CoreApi {
   getLab(): Promise<LabSettings>;
   updateLab(input: LabSettingsInput): Promise<LabSettings>;
 

@@ -1,10 +1,8 @@
 // The LabApi implemented over a lab file. Validates every input (shape with zod, meaning
 // against the records), computes with the engine, and writes each operation in one
 // transaction: a refusal writes nothing.
-import { addMonths, differenceInCalendarDays, formatISO, parseISO } from 'date-fns';
 import { parse as parseCsv } from 'csv-parse/sync';
 import { stringify as stringifyCsv } from 'csv-stringify/sync';
-import type { z } from 'zod';
 import {
   ENGINE_VERSION,
   checkInBand,
@@ -15,7 +13,7 @@ import {
   refractivityN,
   waterVapourPressureHpa,
 } from '../engine';
-import type { Conditions, DecisionRule, MeterSpec, PointResult, Reading, Verdict } from '../engine/model';
+import type { Conditions, DecisionRule, PointResult, Reading, Verdict } from '../engine/model';
 import type { LabDb } from '../../db/store';
 import { getLab, putLab } from '../../db/queries/lab';
 import { findPersonByName, insertPerson, listPeople } from '../../db/queries/people';
@@ -47,7 +45,22 @@ import type {
   Standard,
 } from './contract';
 import { OPERATIONS } from './contract';
-import { LabError, describe, fromZod, type FieldIssue } from './errors';
+import { LabError, describe } from './errors';
+import {
+  Issues,
+  addMonthsIso,
+  daysBetween,
+  frequencyOrIssue,
+  parseWith,
+  specOf,
+  systemClock,
+  worstVerdict,
+  type Clock,
+} from './support';
+import type { ServiceContext, SyncOps } from './context';
+import type { CoreApi } from './contract';
+
+export { fixedClock, systemClock, worstVerdict, addMonthsIso, daysBetween, type Clock } from './support';
 import {
   AirSchema,
   BudgetDocumentSchema,
@@ -60,89 +73,7 @@ import {
   type CheckDocument,
 } from './schemas';
 
-/** The service's only source of time, injected so tests run on a fixed clock. */
-export interface Clock {
-  /** Today's date in the lab, YYYY-MM-DD. */
-  today(): string;
-  /** Now, ISO 8601 with time zone. */
-  now(): string;
-}
-
-export const systemClock: Clock = {
-  today: () => formatISO(new Date(), { representation: 'date' }),
-  now: () => new Date().toISOString(),
-};
-
-export function fixedClock(isoDateTime: string): Clock {
-  return { today: () => isoDateTime.slice(0, 10), now: () => isoDateTime };
-}
-
-const VERDICT_ORDER: Verdict[] = ['pass', 'conditional-pass', 'conditional-fail', 'fail'];
-
-export function worstVerdict(verdicts: Verdict[]): Verdict | null {
-  let worst = -1;
-  for (const v of verdicts) worst = Math.max(worst, VERDICT_ORDER.indexOf(v));
-  return worst < 0 ? null : (VERDICT_ORDER[worst] ?? null);
-}
-
-export function addMonthsIso(date: string, months: number): string {
-  return formatISO(addMonths(parseISO(date), months), { representation: 'date' });
-}
-
-export function daysBetween(fromIso: string, toIso: string): number {
-  return differenceInCalendarDays(parseISO(toIso), parseISO(fromIso));
-}
-
-function parseWith<S extends z.ZodType>(schema: S, input: unknown, prefix = ''): z.output<S> {
-  const result = schema.safeParse(input, { reportInput: true });
-  if (!result.success) throw fromZod(result.error, input, prefix);
-  return result.data;
-}
-
-function specOf(m: Meter): MeterSpec {
-  return {
-    minHz: m.minHz,
-    maxHz: m.maxHz,
-    dialKind: m.dialKind,
-    accuracyRelPpm: m.accuracyRelPpm,
-    accuracyAbsHz: m.accuracyAbsHz,
-    resolution: m.resolution,
-    chart: m.dialKind === 'divisions' ? m.chart : undefined,
-    alphaPerK: m.alphaPerK,
-    alphaUncertaintyPerK: m.alphaUncertaintyPerK,
-    reference: m.reference,
-    loadedQ: m.loadedQ,
-    settingFraction: m.settingFraction,
-  };
-}
-
-/** Collects field issues so one refusal can name every problem of a document at once. */
-class Issues {
-  readonly list: FieldIssue[] = [];
-  add(field: string, value: unknown, expected: string, message?: string): void {
-    this.list.push({
-      field,
-      value,
-      expected,
-      message: message ?? `${field}: ${describe(value)}: ${expected}`,
-    });
-  }
-  fromParse(field: string, value: unknown, message: string, expected: string): void {
-    this.list.push({ field, value, expected, message });
-  }
-  throwIfAny(): void {
-    if (this.list.length > 0) throw LabError.invalid(this.list);
-  }
-}
-
-function frequencyOrIssue(issues: Issues, input: string | number, field: string): number | undefined {
-  const r = parseFrequencyHz(input, field);
-  if (r.ok) return r.hz;
-  issues.fromParse(field, input, r.message, 'a frequency with its unit, such as "9.3 GHz"');
-  return undefined;
-}
-
-interface PreparedPoint {
+export interface PreparedPoint {
   phase: 'as-found' | 'as-left';
   referenceHz: number;
   standard: StandardRecord;
@@ -152,7 +83,7 @@ interface PreparedPoint {
   result: PointResult;
 }
 
-interface PreparedCheck {
+export interface PreparedCheck {
   doc: CheckDocument;
   meter: MeterRecord;
   performer: Person | undefined;
@@ -545,7 +476,23 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
     return checkId;
   }
 
-  const api: SyncLabApi = {
+  // What operation groups in other files may use; they get the same validation and helpers.
+  const ctx: ServiceContext = {
+    db,
+    clock,
+    actor,
+    lab,
+    meterOr404,
+    registerRow,
+    certificateOn,
+    readingValue,
+    conditionsOf,
+    evaluateOrIssue,
+    prepareCheck,
+    writeCheck,
+  };
+
+  const core: SyncOps<CoreApi> = {
     getLab() {
       return lab();
     },
@@ -964,12 +911,22 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
     }
   }
 
+  // Each later group of operations lives in its own file and is added here.
+  const api: SyncLabApi = {
+    ...core,
+    ...groupPlaceholder(ctx),
+  };
   return asyncApi(api);
+}
+
+/** Stands in the list until the first operation group joins; removed when it does. */
+function groupPlaceholder(_ctx: ServiceContext): Record<never, never> {
+  return {};
 }
 
 /** The service is written synchronously (better-sqlite3 is synchronous); callers get the
  * async contract, and a refusal always arrives as a rejected promise, never a throw. */
-type SyncLabApi = { [K in keyof LabApi]: (...args: Parameters<LabApi[K]>) => Awaited<ReturnType<LabApi[K]>> };
+type SyncLabApi = SyncOps<LabApi>;
 
 function asyncApi(sync: SyncLabApi): LabApi {
   const out: Record<string, (...args: unknown[]) => Promise<unknown>> = {};

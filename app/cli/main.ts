@@ -4,19 +4,51 @@
 import { readFileSync, writeFileSync } from 'node:fs';
 import { homedir } from 'node:os';
 import path from 'node:path';
-import { parseArgs } from 'node:util';
+import { parseArgs, type ParseArgsConfig } from 'node:util';
 import { LabError } from '../api/errors';
 import { encodeJson } from '../api/json';
 import { openApi, type OpenedLab } from '../api/open';
-import type { CheckRecord, RegisterRow } from '../api/contract';
-import { systemClock, fixedClock, type Clock } from '../api/service';
+import { systemClock, fixedClock } from '../api/service';
 import { StoreError } from '../../db/store';
 import { formatFrequency } from '../engine';
-import type { PointResult, Verdict } from '../engine/model';
 import { labFilePath } from '../desktop/startup';
 import { createLabFile } from '../../sample-lab/load';
+import type { CliIo, CommandContext, CommandGroup } from './command';
+import {
+  UsageError,
+  band,
+  budgetText,
+  checkText,
+  dueWords,
+  fmtPpm,
+  numberOption,
+  readJsonFile,
+  registerTable,
+  table,
+  verdictWord,
+} from './format';
 
-export const USAGE = `dipledger: calibration records for cavity frequency meters
+export type { CliIo } from './command';
+
+/** Command groups from other files (sweeps, history, records...) join the core commands here. */
+const GROUPS: CommandGroup[] = [];
+
+const CORE_OPTIONS: NonNullable<ParseArgsConfig['options']> = {
+  db: { type: 'string' },
+  json: { type: 'boolean', default: false },
+  sample: { type: 'boolean', default: false },
+  name: { type: 'string' },
+  within: { type: 'string' },
+  temp: { type: 'string' },
+  rh: { type: 'string' },
+  pressure: { type: 'string' },
+  out: { type: 'string' },
+  port: { type: 'string' },
+  'require-pass': { type: 'boolean', default: false },
+  help: { type: 'boolean', short: 'h', default: false },
+};
+
+const CORE_USAGE = `dipledger: calibration records for cavity frequency meters
 
 usage: dipledger [--db FILE] [--json] COMMAND [ARGS]
 
@@ -30,7 +62,7 @@ usage: dipledger [--db FILE] [--json] COMMAND [ARGS]
   import FILE.csv                    bulk history in (all or nothing)
   export [--out FILE.csv]            bulk history out
   serve [--port N]                   the UI in a browser on 127.0.0.1
-
+%GROUPS%
   --db FILE   the lab file (default: $DIPLEDGER_DB or the user's data folder)
   --json      machine-readable output in SI units (Hz, ppm, degC, hPa)
 
@@ -38,173 +70,8 @@ Frequencies take units: 9.3GHz, "9300 MHz", 9.3e9. Exit codes: 0 ok, 1 not a pas
 where --require-pass asks, 2 bad input (nothing written).
 Verdicts support, and never replace, the lab's quality system and accredited practice.`;
 
-export interface CliIo {
-  out(text: string): void;
-  err(text: string): void;
-  env: NodeJS.ProcessEnv;
-  cwd: string;
-  clock: Clock;
-}
-
-class UsageError extends Error {}
-
-const VERDICT_WORDS: Record<Verdict, string> = {
-  pass: 'PASS',
-  'conditional-pass': 'PASS (conditional)',
-  'conditional-fail': 'FAIL (conditional)',
-  fail: 'FAIL',
-};
-
-function table(header: string[], rows: string[][], rightAligned: number[] = []): string {
-  const widths = header.map((h, i) => Math.max(h.length, ...rows.map((r) => (r[i] ?? '').length)));
-  const line = (cells: string[]) =>
-    cells
-      .map((c, i) => (rightAligned.includes(i) ? c.padStart(widths[i] ?? 0) : c.padEnd(widths[i] ?? 0)))
-      .join('  ')
-      .trimEnd();
-  return [line(header), line(widths.map((w) => '-'.repeat(w))), ...rows.map(line)].join('\n');
-}
-
-const band = (r: { minHz: number; maxHz: number }) =>
-  `${formatFrequency(r.minHz, 4)} - ${formatFrequency(r.maxHz, 4)}`;
-const verdictWord = (v: Verdict | null) => (v ? VERDICT_WORDS[v] : '-');
-const dueWords = (r: RegisterRow) =>
-  r.daysToDue === null ? 'never checked' : r.daysToDue < 0 ? `OVERDUE ${-r.daysToDue} d` : `${r.daysToDue} d`;
-
-function registerTable(rows: RegisterRow[]): string {
-  return table(
-    ['meter', 'description', 'band', 'state', 'last check', 'verdict', 'due', 'in'],
-    rows.map((r) => [
-      r.assetId,
-      r.description,
-      band(r),
-      r.state,
-      r.lastCheckDate ?? '-',
-      verdictWord(r.lastVerdict),
-      r.dueDate ?? '-',
-      dueWords(r),
-    ]),
-    [7],
-  );
-}
-
-function budgetText(p: PointResult, referenceHz: number): string {
-  const b = p.budget;
-  const rows = b.contributions.map((c) => [
-    c.label,
-    c.type,
-    c.distribution,
-    `${fmt(c.standardUncertainty)} ${c.unit}`,
-    sensitivityText(c.sensitivity, c.unit),
-    fmt(c.contributionHz),
-    Number.isFinite(c.dof) ? String(Math.round(c.dof * 10) / 10) : 'inf',
-  ]);
-  const lines = [
-    table(['input quantity', 'type', 'distribution', 'u(x)', 'c', 'u(y) / Hz', 'dof'], rows, [3, 4, 5, 6]),
-    '',
-    `reference frequency  ${formatFrequency(referenceHz, 10)}`,
-    `indication           ${formatFrequency(p.indicatedHz, 10)}`,
-    `corrected to ref.    ${formatFrequency(p.correctedHz, 10)}  (thermal ${fmtPpm(p.thermalCorrectionPpm)}, air ${fmtPpm(p.airCorrectionPpm)})`,
-    `error                ${signedHz(p.errorHz)}  (${fmtPpm(p.errorPpm)})`,
-    `combined u_c         ${formatFrequency(b.combinedHz, 4)}   effective dof ${Number.isFinite(b.effectiveDof) ? b.effectiveDof.toFixed(1) : 'inf'}`,
-    `expanded U           ${formatFrequency(b.expandedHz, 4)}  (k = ${b.coverageFactor.toFixed(2)}, p = ${(b.coverageProbability * 100).toFixed(2)} %; ${p.expandedPpm.toFixed(1)} ppm)`,
-    `tolerance            +/- ${formatFrequency(p.decision.toleranceHz, 4)}   acceptance limit ${formatFrequency(p.decision.acceptanceLimitHz, 4)}`,
-    `TUR                  ${p.decision.tur.toFixed(2)}`,
-    `P(conformity)        ${(p.decision.probabilityOfConformity * 100).toFixed(2)} %  (JCGM 106)`,
-    `decision rule        ${ruleWords(p.decision.rule)}`,
-    `verdict              ${VERDICT_WORDS[p.decision.verdict]}`,
-  ];
-  for (const n of p.notes) lines.push(`note: ${n}`);
-  return lines.join('\n');
-}
-
-function ruleWords(rule: PointResult['decision']['rule']): string {
-  switch (rule.kind) {
-    case 'simple':
-      return 'simple acceptance (ILAC-G8:09/2019 4.2.1)';
-    case 'guarded':
-      return `binary with guard band w = ${rule.multipleOfU} U (ILAC-G8:09/2019 4.2.2)`;
-    case 'guarded-fixed':
-      return `binary with guard band w = ${rule.guardBandPpm} ppm (ILAC-G8:09/2019 4.2.2)`;
-    case 'non-binary':
-      return 'non-binary with guard band w = U (ILAC-G8:09/2019 4.2.3)';
-  }
-}
-
-function fmt(x: number): string {
-  if (x === 0) return '0';
-  const a = Math.abs(x);
-  return a >= 1e4 || a < 1e-2 ? x.toExponential(3) : x.toPrecision(4);
-}
-const signedHz = (x: number) => `${x < 0 ? '-' : '+'}${formatFrequency(Math.abs(x), 5)}`;
-
-/** Sensitivity with its unit: Hz of error per unit of the input quantity. */
-function sensitivityText(c: number, unit: string): string {
-  if (unit === 'Hz') return fmt(c);
-  if (unit === '1/K') return `${fmt(c)} Hz K`;
-  return `${fmt(c)} Hz/${unit}`;
-}
-
-const fmtPpm = (x: number) => `${x >= 0 ? '+' : ''}${x.toFixed(1)} ppm`;
-
-function checkText(c: CheckRecord): string {
-  const head = [
-    `check ${c.checkId} revision ${c.revision} (${c.state}) of ${c.meterAssetId} on ${c.date} by ${c.performer}`,
-    `standards ${c.standards.join(', ')}; ${c.conditions.temperatureC} degC, ${c.conditions.pressureHpa} hPa, ${c.conditions.humidityPct} %RH`,
-    `as found ${verdictWord(c.asFoundVerdict)}; as left ${verdictWord(c.asLeftVerdict)}${c.adjusted ? ' (adjusted)' : ''}`,
-    '',
-  ];
-  const rows = c.points.map((p) => [
-    String(p.seq),
-    p.phase,
-    formatFrequency(p.referenceHz, 7),
-    fmtPpm(p.result.errorPpm),
-    `${p.result.expandedPpm.toFixed(1)} ppm`,
-    p.result.budget.coverageFactor.toFixed(2),
-    `${((Math.abs(p.result.errorHz) / p.result.decision.toleranceHz) * 100).toFixed(0)} %`,
-    VERDICT_WORDS[p.result.decision.verdict],
-  ]);
-  return (
-    head.join('\n') +
-    table(['#', 'phase', 'reference', 'error', 'U', 'k', 'of tol.', 'verdict'], rows, [0, 3, 4, 5, 6])
-  );
-}
-
-function readJsonFile(file: string, cwd: string): unknown {
-  const full = path.resolve(cwd, file);
-  let text: string;
-  try {
-    text = readFileSync(full, 'utf8');
-  } catch {
-    throw LabError.field('FILE', file, 'a readable file', `cannot read ${file}`);
-  }
-  try {
-    return JSON.parse(text) as unknown;
-  } catch (e) {
-    throw LabError.field(
-      'FILE',
-      file,
-      'a JSON document',
-      `${file} is not valid JSON: ${e instanceof Error ? e.message : String(e)}`,
-    );
-  }
-}
-
-function numberOption(name: string, value: string | undefined, required: boolean): number | undefined {
-  if (value === undefined) {
-    if (required) throw new UsageError(`--${name} is required`);
-    return undefined;
-  }
-  const n = Number(value.trim());
-  if (value.trim() === '' || !Number.isFinite(n)) {
-    throw LabError.field(
-      `--${name}`,
-      value,
-      'a number',
-      `--${name}: ${JSON.stringify(value)} is not a number`,
-    );
-  }
-  return n;
+export function usage(): string {
+  return CORE_USAGE.replace('%GROUPS%', GROUPS.map((g) => g.usage).join(''));
 }
 
 /** Runs one command line; returns the exit code. Never throws. */
@@ -212,29 +79,27 @@ export async function runCli(argv: string[], io: CliIo): Promise<number> {
   let opened: OpenedLab | undefined;
   let json = false;
   try {
-    const { values, positionals } = parseArgs({
-      args: argv,
-      allowPositionals: true,
-      strict: true,
-      options: {
-        db: { type: 'string' },
-        json: { type: 'boolean', default: false },
-        sample: { type: 'boolean', default: false },
-        name: { type: 'string' },
-        within: { type: 'string' },
-        temp: { type: 'string' },
-        rh: { type: 'string' },
-        pressure: { type: 'string' },
-        out: { type: 'string' },
-        port: { type: 'string' },
-        'require-pass': { type: 'boolean', default: false },
-        help: { type: 'boolean', short: 'h', default: false },
-      },
-    });
+    const options = { ...CORE_OPTIONS };
+    for (const g of GROUPS) Object.assign(options, g.options);
+    const parsed = parseArgs({ args: argv, allowPositionals: true, strict: true, options });
+    const values = parsed.values as Record<string, string | boolean | undefined> & {
+      db?: string;
+      json: boolean;
+      sample: boolean;
+      name?: string;
+      within?: string;
+      temp?: string;
+      rh?: string;
+      pressure?: string;
+      out?: string;
+      port?: string;
+      'require-pass': boolean;
+      help: boolean;
+    };
     json = values.json;
-    const [command, ...rest] = positionals;
+    const [command, ...rest] = parsed.positionals;
     if (values.help || !command) {
-      io.out(USAGE);
+      io.out(usage());
       return command || values.help ? 0 : 2;
     }
     const dbFile = values.db
@@ -247,6 +112,12 @@ export async function runCli(argv: string[], io: CliIo): Promise<number> {
       if (!v) throw new UsageError(`${command} needs ${name}`);
       return v;
     };
+
+    const grouped = GROUPS.find((g) => command in g.commands)?.commands[command];
+    if (grouped) {
+      const ctx: CommandContext = { io, json, values, rest, dbFile, print, open, arg };
+      return await grouped(ctx);
+    }
 
     switch (command) {
       case 'init': {
