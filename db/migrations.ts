@@ -9,7 +9,13 @@ export interface Migration {
   sql: string;
 }
 
-const FILES: ReadonlyArray<readonly [number, string]> = [[1, '0001_initial.sql']];
+const FILES: ReadonlyArray<readonly [number, string]> = [
+  [1, '0001_initial.sql'],
+  [2, '0002_records.sql'],
+  [3, '0003_sweeps.sql'],
+  [4, '0004_drafts.sql'],
+  [5, '0005_documents.sql'],
+];
 
 function load(version: number, file: string): Migration {
   const sql = readFileSync(new URL(`./migrations/${file}`, import.meta.url), 'utf8');

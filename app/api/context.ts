@@ -44,7 +44,11 @@ export interface ServiceContext {
     rule: DecisionRule,
   ): PointResult | undefined;
   /** Validates a check document against the records and computes it; writes nothing. */
-  prepareCheck(input: unknown, prefix: string, options: { createPerformer: boolean }): PreparedCheck;
+  prepareCheck(
+    input: unknown,
+    prefix: string,
+    options: { createPerformer: boolean; amendingCheckId?: number },
+  ): PreparedCheck;
   /** Writes a prepared check and its audit entry; call inside a transaction. Returns the check id. */
   writeCheck(c: PreparedCheck, action: string): number;
 }

@@ -24,6 +24,11 @@ import type {
   LabSettingsInput,
   AirInput,
 } from './schemas';
+import { DRAFTS_OPERATIONS, type DraftsApi } from './contract-drafts';
+import { RECORDS_OPERATIONS, type RecordsApi } from './contract-records';
+import { HISTORY_OPERATIONS, type HistoryApi } from './contract-history';
+import { SWEEP_OPERATIONS, type SweepApi } from './contract-sweep';
+import { DOCUMENTS_OPERATIONS, type DocumentsApi } from './contract-documents';
 
 export interface LabSettings {
   name: string;
@@ -40,6 +45,11 @@ export interface LabSettings {
   defaultHumidityUncertaintyPct: number;
   /** Whether a suggested interval may appear on certificates (ISO/IEC 17025:2017 7.8.4.3). */
   printSuggestedInterval: boolean;
+  /** Whether a check's reviewer must be someone other than its performer. */
+  signersMustDiffer: boolean;
+  /** strict: a standard out of calibration on the check date refuses the check; permissive:
+   * the check is recorded with a visible exception on its revision. */
+  traceabilityPolicy: 'strict' | 'permissive';
 }
 
 export interface Meter {
@@ -83,6 +93,9 @@ export interface RegisterRow {
   dueDate: string | null;
   /** Days until due (negative when overdue), from the service clock. */
   daysToDue: number | null;
+  /** History flags worth attention (drift, steps, dip health), in a few words each; filled by the
+   * due list (see ops-history.ts). */
+  flags?: string[];
 }
 
 export interface StandardCertificate {
@@ -182,7 +195,7 @@ export interface DueQuery {
 /** Every operation of the product: the core below and the groups in contract-*.ts files.
  * Inputs are unvalidated data at runtime; the service validates them and rejects with a
  * LabError (see errors.ts). */
-export type LabApi = CoreApi;
+export type LabApi = CoreApi & DraftsApi & HistoryApi & RecordsApi & SweepApi & DocumentsApi;
 
 /** The foundation: register, meters, standards, people, checks, computations, CSV. */
 export interface CoreApi {
@@ -240,4 +253,9 @@ export const CORE_OPERATIONS = {
  * Each group's list (in its contract-*.ts file) is spread in here. */
 export const OPERATIONS = {
   ...CORE_OPERATIONS,
+  ...DRAFTS_OPERATIONS,
+  ...RECORDS_OPERATIONS,
+  ...HISTORY_OPERATIONS,
+  ...DOCUMENTS_OPERATIONS,
+  ...SWEEP_OPERATIONS,
 } as const satisfies Record<OperationName, 'read' | 'write'>;

@@ -2,6 +2,7 @@
 // records (units against a meter's band, known meters and standards, dates against the
 // clock) is checked in service.ts, and reported in the same LabError form.
 import { z } from 'zod';
+import { SweepInputSchema } from './schemas-sweep';
 
 const isoDate = z.iso.date('expected a date as YYYY-MM-DD');
 const nonEmpty = (what: string) => z.string(`expected ${what}`).trim().min(1, `expected ${what}, not empty`);
@@ -42,6 +43,10 @@ export const LabSettingsSchema = z.object({
   defaultPressureUncertaintyHpa: finite('pressure uncertainty').pipe(z.number().min(0).max(50)).default(1),
   defaultHumidityUncertaintyPct: finite('humidity uncertainty').pipe(z.number().min(0).max(50)).default(5),
   printSuggestedInterval: z.boolean().default(false),
+  signersMustDiffer: z.boolean('expected true or false').default(true),
+  traceabilityPolicy: z
+    .enum(['strict', 'permissive'], 'expected "strict" or "permissive"')
+    .default('strict'),
 });
 export type LabSettingsInput = z.input<typeof LabSettingsSchema>;
 
@@ -137,15 +142,33 @@ export const ConditionsSchema = z.object({
   humidityUncertaintyPct: finite('humidity uncertainty').pipe(z.number().min(0).max(50)).optional(),
 });
 
-export const CheckPointSchema = z.object({
-  phase: z.enum(['as-found', 'as-left'], 'expected "as-found" or "as-left"').default('as-found'),
-  reference: FrequencyText,
-  /** Asset id of the lab standard that supplied the reference; defaults to the first listed. */
-  standard: z.string().optional(),
-  readings: z.array(ReadingSchema).min(2, 'expected at least two readings per point'),
-  /** Depth of the dip seen on the detector at this point, dB (health of the cavity). */
-  dipDepthDb: finite('dip depth in dB').pipe(z.number().min(0).max(60)).optional(),
-});
+export const CheckPointSchema = z
+  .object({
+    phase: z.enum(['as-found', 'as-left'], 'expected "as-found" or "as-left"').default('as-found'),
+    /** Required for tune-to-dip points; a swept point takes its reference from the fitted resonance. */
+    reference: FrequencyText.optional(),
+    /** Asset id of the lab standard that supplied the reference; defaults to the first listed. */
+    standard: z.string().optional(),
+    readings: z.array(ReadingSchema).default([]),
+    /** Depth of the dip seen on the detector at this point, dB (health of the cavity). */
+    dipDepthDb: finite('dip depth in dB').pipe(z.number().min(0).max(60)).optional(),
+    // Sweep method (schemas-sweep.ts): the graduation the dial was set to, and the swept trace.
+    dialSetting: z.union([z.string(), z.number()], 'expected a dial graduation').optional(),
+    sweep: SweepInputSchema.optional(),
+  })
+  .superRefine((p, ctx) => {
+    const issue = (path: string, message: string) => ctx.addIssue({ code: 'custom', path: [path], message });
+    if (p.sweep === undefined) {
+      if (p.reference === undefined) issue('reference', 'expected a frequency such as "9.3 GHz"');
+      if (p.readings.length < 2) issue('readings', 'expected at least two readings per point');
+      if (p.dialSetting !== undefined) issue('dialSetting', 'expected a sweep with a dial setting (sweep method)');
+      return;
+    }
+    if (p.dialSetting === undefined) issue('dialSetting', 'expected the graduation the dial was set to');
+    if (p.readings.length > 0) issue('readings', 'expected no readings on a swept point (the sweep is the reading)');
+    if (p.reference !== undefined)
+      issue('reference', 'expected no reference on a swept point (the fitted resonance is the reference)');
+  });
 
 /** The exchange document: one check of one meter (format "dipledger.check/1"). */
 export const CheckDocumentSchema = z.object({
@@ -160,7 +183,18 @@ export const CheckDocumentSchema = z.object({
   remarks: z.string().default(''),
   points: z.array(CheckPointSchema).min(1, 'expected at least one point'),
 });
-export type CheckDocumentInput = z.input<typeof CheckDocumentSchema>;
+/** A document as callers type it: tune-to-dip points need their reference and readings. Swept
+ * points are accepted at run time too; type a document holding them as SweptCheckDocumentInput. */
+export type CheckDocumentInput = Omit<z.input<typeof CheckDocumentSchema>, 'points'> & {
+  points: (z.input<typeof CheckPointSchema> & {
+    reference: z.input<typeof FrequencyText>;
+    readings: z.input<typeof ReadingSchema>[];
+  })[];
+};
+/** A document with points by the sweep method (dialSetting and sweep, no reference or readings). */
+export type SweptCheckDocumentInput = Omit<z.input<typeof CheckDocumentSchema>, 'points'> & {
+  points: z.input<typeof CheckPointSchema>[];
+};
 export type CheckDocument = z.output<typeof CheckDocumentSchema>;
 
 /** One point judged on its own: a meter (from the lab, or its spec inline), conditions, readings. */

@@ -32,6 +32,8 @@ import {
 } from '../../db/queries/meters';
 import { allCheckIds, findCheckId, getCheck, insertCheck, listCheckSummaries } from '../../db/queries/checks';
 import { appendAudit } from '../../db/queries/audit';
+import { insertSweeps, type SweepData } from '../../db/queries/sweeps';
+import { prepareSweepPoint } from './sweep-points';
 import type {
   AirResult,
   ImportResult,
@@ -59,6 +61,11 @@ import {
 } from './support';
 import type { ServiceContext, SyncOps } from './context';
 import type { CoreApi } from './contract';
+import { draftsOps } from './ops-drafts';
+import { recordsOps } from './ops-records';
+import { historyOps, registerFlags } from './ops-history';
+import { sweepOps } from './ops-sweep';
+import { documentsOps } from './ops-documents';
 
 export { fixedClock, systemClock, worstVerdict, addMonthsIso, daysBetween, type Clock } from './support';
 import {
@@ -81,6 +88,8 @@ export interface PreparedPoint {
   readings: Reading[];
   dipDepthDb: number | null;
   result: PointResult;
+  /** Sweep method (issue 3): the graduation set, the raw trace and its fit; stored by writeCheck. */
+  sweep?: SweepData;
 }
 
 export interface PreparedCheck {
@@ -93,6 +102,8 @@ export interface PreparedCheck {
   asFoundVerdict: Verdict | null;
   asLeftVerdict: Verdict | null;
   worstUsedFraction: number | null;
+  /** Standards used outside their calibration, let through by a permissive lab policy. */
+  exceptions: string[];
 }
 
 export interface ServiceOptions {
@@ -242,7 +253,7 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
   function prepareCheck(
     input: unknown,
     prefix: string,
-    options: { createPerformer: boolean },
+    options: { createPerformer: boolean; amendingCheckId?: number },
   ): PreparedCheck {
     const doc = parseWith(CheckDocumentSchema, input, prefix);
     const settings = lab();
@@ -289,6 +300,7 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
     }
 
     const standards: PreparedCheck['standards'] = [];
+    const exceptions: string[] = [];
     doc.standards.forEach((assetId, i) => {
       const field = f(`standards[${i}]`);
       const s = getStandardByAsset(db, assetId);
@@ -302,6 +314,20 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
         return;
       }
       const cert = certificateOn(s, doc.date);
+      // A permissive lab records the check against the certificate nearest before the date,
+      // with an exception shown on the record; a strict lab refuses it.
+      const nearest =
+        settings.traceabilityPolicy === 'permissive' && !cert
+          ? (s.certificates.find((c) => c.calibratedOn <= doc.date) ?? s.certificates[s.certificates.length - 1])
+          : undefined;
+      if (!cert && nearest) {
+        exceptions.push(
+          `${assetId} had no valid calibration on ${doc.date} (certificate ${nearest.certificateId}, ` +
+            `${nearest.calibratedOn} to ${nearest.dueOn}); recorded under the lab's permissive traceability policy`,
+        );
+        standards.push({ record: s, certificate: nearest });
+        return;
+      }
       if (!cert) {
         const newest = s.certificates[0];
         issues.add(
@@ -311,7 +337,8 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
           `${field}: ${assetId} had no valid calibration on ${doc.date}` +
             (newest
               ? ` (newest certificate ${newest.certificateId}, ${newest.calibratedOn} to ${newest.dueOn})`
-              : ''),
+              : '') +
+            "; the lab's traceability policy is strict",
         );
         return;
       }
@@ -323,7 +350,26 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
     const points: PreparedPoint[] = [];
     doc.points.forEach((p, i) => {
       const pf = f(`points[${i}]`);
-      const referenceHz = frequencyOrIssue(issues, p.reference, `${pf}.reference`);
+      // Sweep method (issue 3): a dial graduation and the resonance fitted to its trace, judged
+      // with the fit's u(f0); sweep-points.ts validates it and returns the same PreparedPoint.
+      if (p.sweep !== undefined) {
+        const swept = prepareSweepPoint({
+          issues,
+          field: pf,
+          point: p,
+          method: doc.method,
+          meter: m,
+          conditions,
+          standards,
+          listedStandards: doc.standards,
+          rule: settings.decisionRule,
+          readingValue,
+        });
+        if (swept) points.push(swept);
+        return;
+      }
+      // The schema requires a reference on every point that is not swept.
+      const referenceHz = frequencyOrIssue(issues, p.reference ?? '', `${pf}.reference`);
       if (referenceHz !== undefined) {
         const out = checkInBand(referenceHz, m.minHz, m.maxHz, `${pf}.reference`);
         if (out)
@@ -396,7 +442,7 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
       );
     }
     const dup = findCheckId(db, meter.id, doc.date);
-    if (dup !== undefined) {
+    if (dup !== undefined && dup !== options.amendingCheckId) {
       issues.add(
         f('date'),
         doc.date,
@@ -423,6 +469,7 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
       asFoundVerdict,
       asLeftVerdict,
       worstUsedFraction,
+      exceptions,
     };
   }
 
@@ -447,6 +494,7 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
         asFoundVerdict: c.asFoundVerdict,
         asLeftVerdict: c.asLeftVerdict,
         worstUsedFraction: c.worstUsedFraction,
+        traceabilityExceptions: c.exceptions,
         standards: c.standards.map((s) => ({ standardId: s.record.id, certificateRowId: s.certificate.id })),
         points: c.points.map((p) => ({
           phase: p.phase,
@@ -458,6 +506,13 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
         })),
       },
       at,
+    );
+    // Sweep method (issue 3): raw traces and fits of swept points, by point number (insertCheck
+    // numbers points 1, 2, ... in order).
+    insertSweeps(
+      db,
+      checkId,
+      c.points.flatMap((p, i) => (p.sweep ? [{ seq: i + 1, sweep: p.sweep }] : [])),
     );
     appendAudit(db, {
       at,
@@ -675,7 +730,7 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
         .map(registerRow)
         .filter((r) => r.state !== 'withdrawn' && (r.daysToDue === null || r.daysToDue <= within))
         .sort((a, b) => (a.daysToDue ?? -Infinity) - (b.daysToDue ?? -Infinity));
-      return rows;
+      return rows.map((r) => ({ ...r, flags: registerFlags(ctx, r) }));
     },
 
     listStandards() {
@@ -914,6 +969,11 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
   // Each later group of operations lives in its own file and is added here.
   const api: SyncLabApi = {
     ...core,
+    ...draftsOps(ctx),
+    ...recordsOps(ctx),
+    ...historyOps(ctx),
+    ...sweepOps(ctx),
+    ...documentsOps(ctx),
     ...groupPlaceholder(ctx),
   };
   return asyncApi(api);

@@ -33,8 +33,20 @@ export const dueWords = (r: RegisterRow) =>
   r.daysToDue === null ? 'never checked' : r.daysToDue < 0 ? `OVERDUE ${-r.daysToDue} d` : `${r.daysToDue} d`;
 
 export function registerTable(rows: RegisterRow[]): string {
+  // The flags column appears only where rows carry history flags (the due list).
+  const withFlags = rows.some((r) => r.flags !== undefined);
   return table(
-    ['meter', 'description', 'band', 'state', 'last check', 'verdict', 'due', 'in'],
+    [
+      'meter',
+      'description',
+      'band',
+      'state',
+      'last check',
+      'verdict',
+      'due',
+      'in',
+      ...(withFlags ? ['flags'] : []),
+    ],
     rows.map((r) => [
       r.assetId,
       r.description,
@@ -44,6 +56,7 @@ export function registerTable(rows: RegisterRow[]): string {
       verdictWord(r.lastVerdict),
       r.dueDate ?? '-',
       dueWords(r),
+      ...(withFlags ? [r.flags?.length ? r.flags.join('; ') : '-'] : []),
     ]),
     [7],
   );

@@ -14,6 +14,10 @@ import { formatFrequency } from '../engine';
 import { labFilePath } from '../desktop/startup';
 import { createLabFile } from '../../sample-lab/load';
 import type { CliIo, CommandContext, CommandGroup } from './command';
+import { historyCommands } from './commands-history';
+import { documentCommands } from './commands-documents';
+import { recordsCommands } from './commands-records';
+import { resolveSweepFiles, sweepCommands } from './commands-sweep';
 import {
   UsageError,
   band,
@@ -31,7 +35,7 @@ import {
 export type { CliIo } from './command';
 
 /** Command groups from other files (sweeps, history, records...) join the core commands here. */
-const GROUPS: CommandGroup[] = [];
+const GROUPS: CommandGroup[] = [historyCommands, recordsCommands, documentCommands, sweepCommands];
 
 const CORE_OPTIONS: NonNullable<ParseArgsConfig['options']> = {
   db: { type: 'string' },
@@ -172,7 +176,9 @@ export async function runCli(argv: string[], io: CliIo): Promise<number> {
         return 0;
       }
       case 'record': {
-        const doc = readJsonFile(arg('FILE.json'), io.cwd);
+        // Trace files named by swept points are read here, beside the document (issue 3).
+        const docFile = arg('FILE.json');
+        const doc = resolveSweepFiles(readJsonFile(docFile, io.cwd), path.dirname(path.resolve(io.cwd, docFile)));
         const rec = await open().api.recordCheck(doc as never);
         print(rec, () => checkText(rec));
         return values['require-pass'] && rec.asLeftVerdict !== 'pass' ? 1 : 0;

@@ -21,14 +21,28 @@ export function appendAudit(db: LabDb, e: AuditInput): string {
   const prevHash = last?.hash ?? GENESIS_HASH;
   const beforeJson = e.before === undefined ? null : JSON.stringify(e.before);
   const afterJson = e.after === undefined ? null : JSON.stringify(e.after);
-  const hash = createHash('sha256')
-    .update(JSON.stringify([prevHash, e.at, e.actor, e.action, e.entity, e.entityId, beforeJson, afterJson]))
-    .digest('hex');
+  const hash = auditHash(prevHash, e.at, e.actor, e.action, e.entity, e.entityId, beforeJson, afterJson);
   db.prepare(
     `INSERT INTO audit_entry (at, actor, action, entity, entity_id, before_json, after_json, prev_hash, hash)
      VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)`,
   ).run(e.at, e.actor, e.action, e.entity, e.entityId, beforeJson, afterJson, prevHash, hash);
   return hash;
+}
+
+/** The hash of one entry over the one before it; the integrity check recomputes it. */
+export function auditHash(
+  prevHash: string,
+  at: string,
+  actor: string,
+  action: string,
+  entity: string,
+  entityId: string,
+  beforeJson: string | null,
+  afterJson: string | null,
+): string {
+  return createHash('sha256')
+    .update(JSON.stringify([prevHash, at, actor, action, entity, entityId, beforeJson, afterJson]))
+    .digest('hex');
 }
 
 export function auditCount(db: LabDb): number {

@@ -27,6 +27,10 @@ export interface NewCheckRevision {
     readings: Reading[];
     result: PointResult;
   }[];
+  /** Standards used outside their calibration, recorded under a permissive lab policy. */
+  traceabilityExceptions?: string[];
+  /** Set on a revision that amends an earlier one (ISO/IEC 17025:2017 7.5.2). */
+  amendment?: { reason: string; by: string };
 }
 
 /** Writes a new check (revision 1, unsigned) and returns its id. Call inside a transaction. */
@@ -35,16 +39,32 @@ export function insertCheck(db: LabDb, c: NewCheckRevision, recordedAt: string):
     db.prepare('INSERT INTO check_event (meter_id, created_at) VALUES (?, ?)').run(c.meterId, recordedAt)
       .lastInsertRowid,
   );
+  insertRevision(db, checkId, 1, c, recordedAt);
+  return checkId;
+}
+
+/** Writes revision `revision` of a check as a draft, with its standards, points and readings;
+ * returns the revision's row id. Call inside a transaction. */
+export function insertRevision(
+  db: LabDb,
+  checkId: number,
+  revision: number,
+  c: NewCheckRevision,
+  recordedAt: string,
+): number {
+  const exceptions = c.traceabilityExceptions?.length ? JSON.stringify(c.traceabilityExceptions) : null;
   const revisionId = Number(
     db
       .prepare(
         `INSERT INTO check_revision (check_id, revision, state, performed_on, performer_id, method, temperature_c,
            u_temperature_c, pressure_hpa, u_pressure_hpa, humidity_pct, u_humidity_pct, adjusted, remarks,
-           decision_rule_json, engine_version, as_found_verdict, as_left_verdict, worst_used_fraction, recorded_at)
-         VALUES (?, 1, 'draft', ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
+           decision_rule_json, engine_version, as_found_verdict, as_left_verdict, worst_used_fraction, recorded_at,
+           amend_reason, amended_by, traceability_exceptions_json)
+         VALUES (?, ?, 'draft', ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
       )
       .run(
         checkId,
+        revision,
         c.date,
         c.performerId,
         c.method,
@@ -62,6 +82,9 @@ export function insertCheck(db: LabDb, c: NewCheckRevision, recordedAt: string):
         c.asLeftVerdict,
         c.worstUsedFraction,
         recordedAt,
+        c.amendment?.reason ?? null,
+        c.amendment?.by ?? null,
+        exceptions,
       ).lastInsertRowid,
   );
   const std = db.prepare(
@@ -93,7 +116,7 @@ export function insertCheck(db: LabDb, c: NewCheckRevision, recordedAt: string):
     );
     p.readings.forEach((r, j) => rd.run(pointId, j + 1, r.value, r.direction));
   });
-  return checkId;
+  return revisionId;
 }
 
 interface RevisionRow {
@@ -120,16 +143,18 @@ interface RevisionRow {
   asset_id: string;
 }
 
-/** The newest revision of a check, in full. */
-export function getCheck(db: LabDb, checkId: number): CheckRecord | undefined {
+/** A revision of a check in full: the one asked for, or else the effective one (the newest
+ * signed revision; for a check never signed, its newest draft). */
+export function getCheck(db: LabDb, checkId: number, revision?: number): CheckRecord | undefined {
   const r = db
     .prepare(
       `SELECT cr.*, p.name AS performer, m.asset_id FROM check_revision cr
        JOIN check_event ce ON ce.id = cr.check_id JOIN meter m ON m.id = ce.meter_id
        JOIN person p ON p.id = cr.performer_id
-       WHERE cr.check_id = ? ORDER BY cr.revision DESC LIMIT 1`,
+       WHERE cr.check_id = ? AND (? IS NULL OR cr.revision = ?)
+       ORDER BY (cr.state <> 'draft') DESC, cr.revision DESC LIMIT 1`,
     )
-    .get(checkId) as RevisionRow | undefined;
+    .get(checkId, revision ?? null, revision ?? null) as RevisionRow | undefined;
   if (!r) return undefined;
   const standards = (
     db
@@ -189,7 +214,7 @@ export function getCheck(db: LabDb, checkId: number): CheckRecord | undefined {
   };
 }
 
-/** Summaries of a meter's checks, newest first, each at its newest revision. */
+/** Summaries of a meter's checks, newest first, each at its effective revision. */
 export function listCheckSummaries(db: LabDb, meterId: number): CheckSummary[] {
   const rows = db
     .prepare(
@@ -197,7 +222,8 @@ export function listCheckSummaries(db: LabDb, meterId: number): CheckSummary[] {
               cr.as_left_verdict, cr.worst_used_fraction,
               (SELECT count(*) FROM check_point cp WHERE cp.revision_id = cr.id) AS point_count
        FROM check_revision cr JOIN check_event ce ON ce.id = cr.check_id JOIN person p ON p.id = cr.performer_id
-       WHERE ce.meter_id = ? AND cr.revision = (SELECT max(x.revision) FROM check_revision x WHERE x.check_id = cr.check_id)
+       WHERE ce.meter_id = ? AND cr.id = (SELECT x.id FROM check_revision x WHERE x.check_id = cr.check_id
+         ORDER BY (x.state <> 'draft') DESC, x.revision DESC LIMIT 1)
        ORDER BY cr.performed_on DESC, cr.check_id DESC`,
     )
     .all(meterId) as {

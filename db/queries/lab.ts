@@ -15,6 +15,8 @@ interface LabRow {
   default_u_pressure_hpa: number;
   default_u_humidity_pct: number;
   print_suggested_interval: number;
+  signers_must_differ: number;
+  traceability_policy: LabSettings['traceabilityPolicy'];
 }
 
 function rowToLab(r: LabRow): LabSettings {
@@ -30,6 +32,8 @@ function rowToLab(r: LabRow): LabSettings {
     defaultPressureUncertaintyHpa: r.default_u_pressure_hpa,
     defaultHumidityUncertaintyPct: r.default_u_humidity_pct,
     printSuggestedInterval: r.print_suggested_interval === 1,
+    signersMustDiffer: r.signers_must_differ === 1,
+    traceabilityPolicy: r.traceability_policy,
   };
 }
 
@@ -46,6 +50,8 @@ function labToRow(s: LabSettings): LabRow {
     default_u_pressure_hpa: s.defaultPressureUncertaintyHpa,
     default_u_humidity_pct: s.defaultHumidityUncertaintyPct,
     print_suggested_interval: s.printSuggestedInterval ? 1 : 0,
+    signers_must_differ: s.signersMustDiffer ? 1 : 0,
+    traceability_policy: s.traceabilityPolicy,
   };
 }
 
@@ -60,16 +66,17 @@ export function putLab(db: LabDb, settings: LabSettings): void {
     .prepare(
       `INSERT INTO lab (id, name, address, accreditation, decision_rule_json, reliability_target,
          interval_min_months, interval_max_months, default_u_temperature_c, default_u_pressure_hpa,
-         default_u_humidity_pct, print_suggested_interval)
+         default_u_humidity_pct, print_suggested_interval, signers_must_differ, traceability_policy)
        VALUES (1, @name, @address, @accreditation, @decision_rule_json, @reliability_target,
          @interval_min_months, @interval_max_months, @default_u_temperature_c, @default_u_pressure_hpa,
-         @default_u_humidity_pct, @print_suggested_interval)
+         @default_u_humidity_pct, @print_suggested_interval, @signers_must_differ, @traceability_policy)
        ON CONFLICT (id) DO UPDATE SET name = excluded.name, address = excluded.address,
          accreditation = excluded.accreditation, decision_rule_json = excluded.decision_rule_json,
          reliability_target = excluded.reliability_target, interval_min_months = excluded.interval_min_months,
          interval_max_months = excluded.interval_max_months, default_u_temperature_c = excluded.default_u_temperature_c,
          default_u_pressure_hpa = excluded.default_u_pressure_hpa, default_u_humidity_pct = excluded.default_u_humidity_pct,
-         print_suggested_interval = excluded.print_suggested_interval`,
+         print_suggested_interval = excluded.print_suggested_interval,
+         signers_must_differ = excluded.signers_must_differ, traceability_policy = excluded.traceability_policy`,
     )
     .run(row);
   if (info.changes !== 1) throw new Error(`lab settings: expected 1 row written, got ${info.changes}`);

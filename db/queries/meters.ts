@@ -146,13 +146,14 @@ export interface RegisterDbRow {
   lastVerdict: Verdict | null;
 }
 
-/** One row per meter with its newest check (newest revision of it); one query for the whole register. */
+/** One row per meter with its newest check (at its effective revision: newest signed, else newest
+ * draft); one query for the whole register. */
 export function registerRows(db: LabDb): RegisterDbRow[] {
   const rows = db
     .prepare(
       `WITH newest_revision AS (
          SELECT cr.check_id, cr.performed_on, cr.as_left_verdict, cr.id,
-                ROW_NUMBER() OVER (PARTITION BY cr.check_id ORDER BY cr.revision DESC) AS rn
+                ROW_NUMBER() OVER (PARTITION BY cr.check_id ORDER BY (cr.state <> 'draft') DESC, cr.revision DESC) AS rn
          FROM check_revision cr
        ), newest_check AS (
          SELECT ce.meter_id, nr.performed_on, nr.as_left_verdict,

@@ -1,8 +1,12 @@
 // The register: every meter of the lab with its state, last verdict and when it falls due,
-// searchable by asset id or description. Reads through the LabApi client only.
+// searchable by asset id or description, and the lab's band coverage. Reads through the
+// LabApi client only.
 import { useDeferredValue, useEffect, useMemo, useState } from 'react';
 import type { LabApi, LabSettings, RegisterRow } from '../../app/api/contract';
+import { Cautions } from './Cautions';
+import { CoverageStrip } from './CoverageStrip';
 import { STATE_LABEL, VERDICT_LABEL, dueStatus, formatBand, formatDays, SOON_DAYS } from './format';
+import { href } from './routes';
 
 type Load =
   | { kind: 'loading' }
@@ -37,7 +41,6 @@ export function RegisterPage({ api }: { api: LabApi }) {
   return (
     <div className="page">
       <header className="masthead">
-        <p className="brand">Dipledger</p>
         <h1>{load.kind === 'ready' ? load.lab.name : 'Register'}</h1>
         <p className="subtitle">Register of cavity frequency meters</p>
       </header>
@@ -67,6 +70,7 @@ export function RegisterPage({ api }: { api: LabApi }) {
               <Summary all={load.rows} shown={shown} />
             </div>
             <RegisterTable rows={shown} query={deferredQuery} />
+            <CoverageStrip rows={load.rows} />
           </>
         )}
       </main>
@@ -82,30 +86,6 @@ export function filterRows(rows: RegisterRow[], query: string): RegisterRow[] {
   const q = query.trim().toLowerCase();
   if (!q) return rows;
   return rows.filter((r) => r.assetId.toLowerCase().includes(q) || r.description.toLowerCase().includes(q));
-}
-
-function Cautions() {
-  return (
-    <aside className="cautions" aria-label="Cautions">
-      <p className="cautions-title">
-        <span aria-hidden="true">⚠</span> Before you work with a meter
-      </p>
-      <ul>
-        <li>
-          <strong>Maximum input power.</strong> Never feed a meter more than the input power stated on its
-          record: the cavity and its coupling can be damaged, and its reading shifts as it warms.
-        </li>
-        <li>
-          <strong>RF exposure.</strong> Keep clear of open waveguide ends, horns and loose flanges while a
-          high-power source is on.
-        </li>
-        <li>
-          <strong>Verdicts support, they do not decide.</strong> They do not replace your lab’s quality
-          system, local regulations, or accredited and licensed practice.
-        </li>
-      </ul>
-    </aside>
-  );
 }
 
 /** Withdrawn meters are not used, so their due date is not a warning. */
@@ -176,7 +156,7 @@ function MeterRow({ row }: { row: RegisterRow }) {
   return (
     <tr className={`due-${due} state-${row.state}`} data-asset-id={row.assetId}>
       <th scope="row" className="asset">
-        {row.assetId}
+        <a href={href.meter(row.assetId)}>{row.assetId}</a>
       </th>
       <td>{row.description || <span className="muted">(no description)</span>}</td>
       <td>{row.construction === 'waveguide' ? 'Waveguide' : 'Coaxial'}</td>

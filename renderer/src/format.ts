@@ -54,3 +54,42 @@ export function formatDays(daysToDue: number | null): string {
   // Soon is said in words too, not only by its colour.
   return status === 'soon' ? `${daysToDue} d, soon` : `${daysToDue} d`;
 }
+
+/** A frequency in the unit that suits it, with a fixed number of significant decimals. */
+export function formatHz(hz: number, decimals = 3): string {
+  const [scale, unit] = UNITS.find(([s]) => Math.abs(hz) >= s) ?? [1, 'Hz'];
+  return `${(hz / scale).toFixed(decimals)} ${unit}`;
+}
+
+/** Signed ppm with a fixed number of decimals, a true minus sign so columns line up. */
+export function formatPpm(ppm: number, decimals = 1): string {
+  const text = Math.abs(ppm).toFixed(decimals);
+  const sign = ppm < 0 && Number(text) !== 0 ? '−' : ppm > 0 && Number(text) !== 0 ? '+' : '';
+  return `${sign}${text} ppm`;
+}
+
+/** Power in W and dBm, as written on a meter's label. */
+export function formatPower(watts: number): string {
+  const dbm = 10 * Math.log10(watts * 1000);
+  const w = watts >= 1 ? `${trim(watts)} W` : `${trim(watts * 1000)} mW`;
+  return `${w} (${dbm.toFixed(1)} dBm)`;
+}
+
+/** Stated accuracy as written: "±(1000 ppm of reading + 0 Hz)" or "±1000 ppm of reading". */
+export function formatAccuracy(relPpm: number, absHz: number): string {
+  const pct = `${trim(relPpm / 1e4)} %`;
+  return absHz > 0
+    ? `±(${trim(relPpm)} ppm (${pct}) of reading + ${formatHz(absHz, 0)})`
+    : `±${trim(relPpm)} ppm (${pct}) of reading`;
+}
+
+/** The tolerance half-width at a frequency, in ppm of that frequency. */
+export function tolerancePpm(relPpm: number, absHz: number, hz: number): number {
+  return relPpm + (absHz / hz) * 1e6;
+}
+
+/** A frequency without trailing zeros: "200 kHz", "1.5 MHz", "9.3 GHz". */
+export function formatHzShort(hz: number): string {
+  const [scale, unit] = UNITS.find(([s]) => Math.abs(hz) >= s) ?? [1, 'Hz'];
+  return `${String(Number((hz / scale).toFixed(6)))} ${unit}`;
+}

@@ -1,8 +1,8 @@
-// Renderer entry: mounts the register page on the lab client chosen for this window.
+// Renderer entry: mounts the app (navigation and views) on the lab client chosen for this window.
 import { StrictMode } from 'react';
 import { createRoot } from 'react-dom/client';
 import { labClient } from './api';
-import { RegisterPage } from './RegisterPage';
+import { App } from './App';
 import './styles.css';
 
 const root = document.getElementById('root');
@@ -10,6 +10,6 @@ if (!root) throw new Error('index.html has no #root element');
 const api = labClient();
 createRoot(root).render(
   <StrictMode>
-    <RegisterPage api={api} />
+    <App api={api} />
   </StrictMode>,
 );

@@ -111,7 +111,18 @@ describe('append-only records (second line behind the API)', () => {
     await lab.api.recordCheck(goodCheck());
     lab.close();
     const db = openLabDb(file);
-    // Signing arrives with the records work; here the state is set directly to exercise the trigger.
+    // A revision turns signed only once a signature row exists (0002); the signing itself is
+    // tested in test/api/records.test.ts, here the rows are written directly to reach the trigger.
+    db.prepare(
+      `INSERT INTO person_key (person_id, public_key_pem, fingerprint, kdf, kdf_n, kdf_r, kdf_p, salt_b64,
+         iv_b64, tag_b64, encrypted_private_key_b64, created_at)
+       SELECT performer_id, 'pem', 'fp', 'scrypt', 16384, 8, 1, 's', 'i', 't', 'k', 't' FROM check_revision`,
+    ).run();
+    db.prepare(
+      `INSERT INTO check_signature (revision_id, seq, person_id, key_id, printed_name, role, meaning, signed_at,
+         payload_sha256, signature_b64) SELECT id, 1, performer_id, 1, 'n', 'technician', 'performed', 't', 'h', 's'
+       FROM check_revision`,
+    ).run();
     db.prepare("UPDATE check_revision SET state = 'signed'").run();
     expect(() => db.prepare('UPDATE check_revision SET remarks = ?').run('edited later')).toThrow(
       /never changed/,

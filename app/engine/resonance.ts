@@ -1,0 +1,720 @@
+// Resonance fitting of a swept trace through an absorption meter: find every dip, fit each, and
+// report f0, loaded Q, depth, baseline, standard uncertainties and the meter's resolution.
+// Sources:
+// - Scalar (power) data: Lorentzian absorption dip on a sloped baseline,
+//   P(f) = (b0 + b1 (f - f0)) (1 - A / (1 + u^2)), u = 2 QL (f - f0) / f0, fitted by weighted
+//   non-linear least squares (the Lorentzian method of K. J. Petersan and S. M. Anlage,
+//   J. Appl. Phys. 84, 3392 (1998)); weights 1 / (s_a^2 + s_m^2 P^2) from an additive plus
+//   multiplicative noise model estimated from the residuals of a first fit (after J. D. Splett,
+//   D. F. Vecchia, K. J. Coakley et al., IEEE Trans. MTT 51(3), 862 (2003)).
+//   Loaded Q is f0 over the full width at half depth; a 1 to 2.5 dB dip has no -3 dB points,
+//   so the 3 dB method is never used.
+// - Complex S21 data: S = S_V + b / (1 + j QL t), t = 2 (f - f0) / f0, with the complex leakage
+//   (detuned) vector S_V and the rotation of the resonance circle in the complex b; weighted with
+//   MAT 58's angular weights 1 / (1 + (QL t)^2), fit, re-weight, fit, re-weight, fit to convergence
+//   (A. P. Gregory, "Q-factor Measurement by using a Vector Network Analyser", NPL Report MAT 58
+//   (2021), sections 2.2 and 2.4, eqs. (21) and (28); the NLQFIT6 procedure).
+// - Notch (absorption) coupling: Q-circle diameter d = |b| / |S_V|, Q0 = QL / (1 - d), Qe = QL / d,
+//   so 1/QL = 1/Q0 + 1/Qe (MAT 58 section 2.5; Pozar, Microwave Engineering, 4th ed., 6.7).
+// - Two-tone resolution: two equal Lorentzian dips merge into one when their spacing is below
+//   FWHM / sqrt(3), where the second derivative of the sum at the midpoint changes sign (the
+//   Sparrow criterion applied to a Lorentzian line).
+// Standard uncertainties come from the covariance of the fit (lsq.ts); they describe the noise of
+// this trace only, not the source's own uncertainty or the meter's setting.
+
+import { levenbergMarquardt, LsqError, type LsqProblem } from './lsq';
+
+export interface ScalarTrace {
+  kind: 'scalar';
+  frequencyHz: ArrayLike<number>;
+  /** Power at the detector, linear (any scale), falling at the dip. */
+  power: ArrayLike<number>;
+}
+
+export interface ComplexTrace {
+  kind: 'complex';
+  frequencyHz: ArrayLike<number>;
+  re: ArrayLike<number>;
+  im: ArrayLike<number>;
+}
+
+export type Trace = ScalarTrace | ComplexTrace;
+
+export type ResonanceErrorCode =
+  'invalid' | 'non-monotonic' | 'too-few-points' | 'no-dip' | 'edge' | 'undersampled' | 'no-fit';
+
+export class ResonanceError extends Error {
+  constructor(
+    readonly code: ResonanceErrorCode,
+    message: string,
+  ) {
+    super(message);
+    this.name = 'ResonanceError';
+  }
+}
+
+export interface DipFit {
+  method: 'scalar-lorentzian' | 'complex-circle';
+  f0Hz: number;
+  /** Standard uncertainty of f0 from the fit's covariance. */
+  f0UncertaintyHz: number;
+  loadedQ: number;
+  loadedQUncertainty: number;
+  /** Depth of the dip in power, dB (positive). */
+  depthDb: number;
+  /** Fraction of the baseline power absorbed at f0 (A of the scalar model). */
+  depthFraction: number;
+  /** Baseline power at f0 (scalar: in the trace's units; complex: |S_V|^2) and its slope per Hz. */
+  baselineAtF0: number;
+  baselineSlopePerHz: number;
+  /** Scalar: RMS of residuals relative to the baseline. Complex: MAT 58 weighted RMS of |S - model|. */
+  residualRms: number;
+  /** Full width at half depth, f0 / QL. */
+  halfDepthBandwidthHz: number;
+  /** Smallest spacing of two equal tones still seen as two dips: f0 / (QL sqrt 3). */
+  twoToneResolutionHz: number;
+  /** Unloaded and external Q of a notch resonator, when the depth lets them be told apart. */
+  unloadedQ: number | null;
+  externalQ: number | null;
+  /** Complex fits: the Q-circle diameter relative to |S_V| (MAT 58 eq. 31). */
+  qCircleDiameter: number | null;
+  /** Points of the trace inside the half-depth width. */
+  pointsPerLinewidth: number;
+  pointsUsed: number;
+  iterations: number;
+}
+
+export interface ResonanceReport {
+  /** The deepest dip: the meter's resonance. */
+  main: DipFit;
+  /** Every other dip: spurious responses of the meter, deepest first. */
+  spurious: DipFit[];
+  notes: string[];
+}
+
+export interface FitOptions {
+  /** Least number of points inside the half-depth width (default 4). */
+  minPointsPerLinewidth?: number;
+}
+
+/** A dip found in the trace before fitting: where, how deep, how wide. */
+interface Candidate {
+  index: number;
+  depth: number;
+  widthHz: number;
+  left: number;
+  right: number;
+}
+
+const MIN_POINTS = 8;
+
+function requireTrace(trace: Trace): { f: Float64Array; power: Float64Array } {
+  const n = trace.frequencyHz.length;
+  if (n < MIN_POINTS)
+    throw new ResonanceError('too-few-points', `a trace needs at least ${MIN_POINTS} points (it has ${n})`);
+  const f = Float64Array.from(trace.frequencyHz);
+  const power = new Float64Array(n);
+  if (trace.kind === 'scalar') {
+    if (trace.power.length !== n)
+      throw new ResonanceError('invalid', 'frequency and level columns differ in length');
+    for (let i = 0; i < n; i++) power[i] = trace.power[i] as number;
+  } else {
+    if (trace.re.length !== n || trace.im.length !== n)
+      throw new ResonanceError('invalid', 'frequency and S-parameter columns differ in length');
+    for (let i = 0; i < n; i++) {
+      const re = trace.re[i] as number;
+      const im = trace.im[i] as number;
+      power[i] = re * re + im * im;
+    }
+  }
+  for (let i = 0; i < n; i++) {
+    const fi = f[i] as number;
+    if (!Number.isFinite(fi) || fi <= 0)
+      throw new ResonanceError('invalid', `point ${i + 1}: frequency ${String(fi)} is not a positive number`);
+    if (i > 0 && !(fi > (f[i - 1] as number)))
+      throw new ResonanceError(
+        'non-monotonic',
+        `point ${i + 1}: frequency ${fi} Hz does not rise above the point before (${f[i - 1]} Hz); a sweep must rise steadily`,
+      );
+    const pi = power[i] as number;
+    if (!Number.isFinite(pi) || pi <= 0)
+      throw new ResonanceError('invalid', `point ${i + 1}: level ${String(pi)} is not a positive power`);
+  }
+  return { f, power };
+}
+
+function median(values: Float64Array | number[]): number {
+  const s = Float64Array.from(values).sort();
+  const m = s.length >> 1;
+  return s.length % 2 ? (s[m] as number) : ((s[m - 1] as number) + (s[m] as number)) / 2;
+}
+
+/** Straight baseline through the trace with the dips left out (iterated, robust to them). */
+function robustBaseline(f: Float64Array, y: Float64Array): { level: Float64Array; sigma: number } {
+  const n = f.length;
+  const fc = f[0] as number;
+  const span = (f[n - 1] as number) - fc;
+  let mask = new Uint8Array(n).fill(1);
+  let c0 = 0;
+  let c1 = 0;
+  for (let round = 0; round < 6; round++) {
+    let sw = 0;
+    let sx = 0;
+    let sy = 0;
+    let sxx = 0;
+    let sxy = 0;
+    for (let i = 0; i < n; i++) {
+      if (!mask[i]) continue;
+      const x = ((f[i] as number) - fc) / span;
+      const v = y[i] as number;
+      sw += 1;
+      sx += x;
+      sy += v;
+      sxx += x * x;
+      sxy += x * v;
+    }
+    const det = sw * sxx - sx * sx;
+    c1 = det > 0 ? (sw * sxy - sx * sy) / det : 0;
+    c0 = (sy - c1 * sx) / sw;
+    const res: number[] = [];
+    for (let i = 0; i < n; i++)
+      if (mask[i]) res.push((y[i] as number) - (c0 + (c1 * ((f[i] as number) - fc)) / span));
+    const sigma = 1.4826 * median(res.map(Math.abs)) || 1e-300;
+    const next = new Uint8Array(n);
+    let kept = 0;
+    for (let i = 0; i < n; i++) {
+      const r = (y[i] as number) - (c0 + (c1 * ((f[i] as number) - fc)) / span);
+      if (r > -2.5 * sigma) {
+        next[i] = 1;
+        kept++;
+      }
+    }
+    if (kept < Math.max(4, n / 10)) break;
+    mask = next;
+  }
+  const level = new Float64Array(n);
+  for (let i = 0; i < n; i++) level[i] = c0 + (c1 * ((f[i] as number) - fc)) / span;
+  const res: number[] = [];
+  for (let i = 0; i < n; i++) if (mask[i]) res.push((y[i] as number) - (level[i] as number));
+  return { level, sigma: 1.4826 * median(res.map(Math.abs)) };
+}
+
+/** Finds the dips: regions where the smoothed fractional depth stands clear of the noise. */
+function findDips(f: Float64Array, power: Float64Array): { candidates: Candidate[]; noise: number } {
+  const n = f.length;
+  const { level } = robustBaseline(f, power);
+  const depth = new Float64Array(n);
+  for (let i = 0; i < n; i++) depth[i] = 1 - (power[i] as number) / Math.max(level[i] as number, 1e-300);
+  // Noise of the fractional depth from first differences (insensitive to the dips themselves).
+  const diffs: number[] = [];
+  for (let i = 1; i < n; i++) diffs.push(Math.abs((depth[i] as number) - (depth[i - 1] as number)));
+  const noise = (1.4826 * median(diffs)) / Math.SQRT2;
+  const half = Math.floor(n / 1000);
+  const smooth = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    let s = 0;
+    let c = 0;
+    for (let k = Math.max(0, i - half); k <= Math.min(n - 1, i + half); k++) {
+      s += depth[k] as number;
+      c++;
+    }
+    smooth[i] = s / c;
+  }
+  const threshold = Math.max((6 * noise) / Math.sqrt(2 * half + 1), 0.01);
+  const candidates: Candidate[] = [];
+  let i = 0;
+  while (i < n) {
+    if ((smooth[i] as number) <= threshold / 2) {
+      i++;
+      continue;
+    }
+    let j = i;
+    let peak = i;
+    while (j < n && (smooth[j] as number) > threshold / 2) {
+      if ((smooth[j] as number) > (smooth[peak] as number)) peak = j;
+      j++;
+    }
+    const d = smooth[peak] as number;
+    if (d > threshold) {
+      let left = peak;
+      while (left > 0 && (smooth[left] as number) > d / 2) left--;
+      let right = peak;
+      while (right < n - 1 && (smooth[right] as number) > d / 2) right++;
+      candidates.push({
+        index: peak,
+        depth: d,
+        widthHz: Math.max((f[right] as number) - (f[left] as number), (f[1] as number) - (f[0] as number)),
+        left,
+        right,
+      });
+    }
+    i = j;
+  }
+  candidates.sort((a, b) => b.depth - a.depth);
+  return { candidates, noise };
+}
+
+function pointsWithin(f: Float64Array, lowHz: number, highHz: number): number {
+  let c = 0;
+  for (let i = 0; i < f.length; i++) {
+    const v = f[i] as number;
+    if (v >= lowHz && v <= highHz) c++;
+  }
+  return c;
+}
+
+/** Indices of the fit window of a dip: about +/- 6 linewidths, without the cores of other dips. */
+function windowOf(f: Float64Array, c: Candidate, others: Candidate[]): number[] {
+  const center = f[c.index] as number;
+  const reach = 6 * c.widthHz;
+  const out: number[] = [];
+  for (let i = 0; i < f.length; i++) {
+    const v = f[i] as number;
+    if (Math.abs(v - center) > reach) continue;
+    if (others.some((o) => o !== c && Math.abs(v - (f[o.index] as number)) < 1.5 * o.widthHz)) continue;
+    out.push(i);
+  }
+  return out;
+}
+
+interface ScalarStart {
+  f0Hz: number;
+  widthHz: number;
+  depth: number;
+  baseline: number;
+  slopePerHz: number;
+}
+
+/** Scalar Lorentzian fit on the given points (weighted by an additive + multiplicative noise model). */
+export function fitScalarDip(
+  frequencyHz: ArrayLike<number>,
+  power: ArrayLike<number>,
+  start: ScalarStart,
+): DipFit {
+  const n = frequencyHz.length;
+  const fc = start.f0Hz;
+  const s = start.widthHz;
+  const ps = start.baseline;
+  const x = new Float64Array(n);
+  const y = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    x[i] = ((frequencyHz[i] as number) - fc) / s;
+    y[i] = (power[i] as number) / ps;
+  }
+  // Parameters [x0, g, A, c0, c1]: f0 = fc + s x0, u = g (x - x0), QL = g f0 / (2 s).
+  const problem: LsqProblem = {
+    rows: n,
+    params: 5,
+    evaluate(p, r, jac) {
+      const x0 = p[0] as number;
+      const g = p[1] as number;
+      const a = p[2] as number;
+      const c0 = p[3] as number;
+      const c1 = p[4] as number;
+      if (!(g > 0) || !(a > 0) || !(a < 1) || !(c0 > 0)) return false;
+      for (let i = 0; i < n; i++) {
+        const dx = (x[i] as number) - x0;
+        const u = g * dx;
+        const l = 1 / (1 + u * u);
+        const d = 1 - a * l;
+        const b = c0 + c1 * dx;
+        r[i] = (y[i] as number) - b * d;
+        if (jac) {
+          const dLdu = -2 * u * l * l;
+          const k = i * 5;
+          jac[k] = -c1 * d + b * (-a * dLdu * -g);
+          jac[k + 1] = b * (-a * dLdu * dx);
+          jac[k + 2] = -b * l;
+          jac[k + 3] = d;
+          jac[k + 4] = dx * d;
+        }
+      }
+      return true;
+    },
+  };
+  const startParams = [
+    0,
+    2 * (s / start.widthHz),
+    Math.min(Math.max(start.depth, 0.02), 0.98),
+    1,
+    (start.slopePerHz * s) / ps,
+  ];
+  let result = levenbergMarquardt(problem, startParams);
+  // Noise model s_a^2 + s_m^2 m^2 from the squared residuals of the first fit, then refit.
+  const r = new Float64Array(n);
+  problem.evaluate(result.params, r, null);
+  let s11 = 0;
+  let s12 = 0;
+  let s22 = 0;
+  let t1 = 0;
+  let t2 = 0;
+  for (let i = 0; i < n; i++) {
+    const m = (y[i] as number) - (r[i] as number);
+    const m2 = m * m;
+    const e2 = (r[i] as number) * (r[i] as number);
+    s11 += 1;
+    s12 += m2;
+    s22 += m2 * m2;
+    t1 += e2;
+    t2 += e2 * m2;
+  }
+  const det = s11 * s22 - s12 * s12;
+  let va = det > 0 ? (t1 * s22 - t2 * s12) / det : t1 / n;
+  let vm = det > 0 ? (s11 * t2 - s12 * t1) / det : 0;
+  if (va < 0 || vm < 0) {
+    // One term alone explains the scatter: keep whichever fits it with a non-negative variance.
+    if (vm <= 0) {
+      va = t1 / n;
+      vm = 0;
+    } else {
+      vm = t1 / s12;
+      va = 0;
+    }
+  }
+  if (va + vm > 0) {
+    const weights = new Float64Array(n);
+    for (let i = 0; i < n; i++) {
+      const m = (y[i] as number) - (r[i] as number);
+      weights[i] = 1 / Math.max(va + vm * m * m, 1e-300);
+    }
+    problem.weights = weights;
+    result = levenbergMarquardt(problem, result.params);
+  }
+  const [x0, g, a, c0, c1] = Array.from(result.params) as [number, number, number, number, number];
+  const cov = result.covariance;
+  const f0Hz = fc + s * x0;
+  const loadedQ = (g * f0Hz) / (2 * s);
+  const uF0 = s * Math.sqrt(cov[0] as number);
+  // QL = g (fc + s x0) / (2 s): gradient over (x0, g).
+  const dQdx0 = g / 2;
+  const dQdg = f0Hz / (2 * s);
+  const varQ =
+    dQdx0 * dQdx0 * (cov[0] as number) +
+    2 * dQdx0 * dQdg * (cov[1] as number) +
+    dQdg * dQdg * (cov[6] as number);
+  const uA = Math.sqrt(cov[12] as number);
+  problem.evaluate(result.params, r, null);
+  let sq = 0;
+  for (let i = 0; i < n; i++) sq += (r[i] as number) * (r[i] as number);
+  const widthHz = f0Hz / loadedQ;
+  const notch = notchQs(loadedQ, 1 - Math.sqrt(1 - a), uA / a);
+  return {
+    method: 'scalar-lorentzian',
+    f0Hz,
+    f0UncertaintyHz: uF0,
+    loadedQ,
+    loadedQUncertainty: Math.sqrt(Math.max(varQ, 0)),
+    depthDb: -10 * Math.log10(1 - a),
+    depthFraction: a,
+    baselineAtF0: c0 * ps,
+    baselineSlopePerHz: (c1 * ps) / s,
+    residualRms: Math.sqrt(sq / n) / c0,
+    halfDepthBandwidthHz: widthHz,
+    twoToneResolutionHz: widthHz / Math.sqrt(3),
+    ...notch,
+    qCircleDiameter: null,
+    pointsPerLinewidth: pointsWithin(Float64Array.from(frequencyHz), f0Hz - widthHz / 2, f0Hz + widthHz / 2),
+    pointsUsed: n,
+    iterations: result.iterations,
+  };
+}
+
+/** Q0 and Qe of a notch resonator from its Q-circle diameter d (relative to the detuned level),
+ * only when the depth determines d well (a relative uncertainty of the depth under 20 % and
+ * 0.01 < d < 0.99, common practice). */
+function notchQs(
+  loadedQ: number,
+  diameter: number,
+  relativeUncertainty: number,
+): { unloadedQ: number | null; externalQ: number | null } {
+  if (!(diameter > 0.01 && diameter < 0.99) || !(relativeUncertainty < 0.2))
+    return { unloadedQ: null, externalQ: null };
+  return { unloadedQ: loadedQ / (1 - diameter), externalQ: loadedQ / diameter };
+}
+
+/** MAT 58 complex fit (NLQFIT6 form) on the given points. */
+export function fitComplexDip(
+  frequencyHz: ArrayLike<number>,
+  re: ArrayLike<number>,
+  im: ArrayLike<number>,
+  start: { f0Hz: number; widthHz: number },
+): DipFit {
+  const n = frequencyHz.length;
+  const fc = start.f0Hz;
+  const s = start.widthHz;
+  const x = new Float64Array(n);
+  for (let i = 0; i < n; i++) x[i] = ((frequencyHz[i] as number) - fc) / s;
+  // Parameters [aRe, aIm, bRe, bIm, x0, g]: S = a + b / (1 + j u), u = g (x - x0) = QL t.
+  const problem: LsqProblem = {
+    rows: 2 * n,
+    params: 6,
+    evaluate(p, r, jac) {
+      const aRe = p[0] as number;
+      const aIm = p[1] as number;
+      const bRe = p[2] as number;
+      const bIm = p[3] as number;
+      const x0 = p[4] as number;
+      const g = p[5] as number;
+      if (!(g > 0)) return false;
+      for (let i = 0; i < n; i++) {
+        const dx = (x[i] as number) - x0;
+        const u = g * dx;
+        const den = 1 + u * u;
+        // y = 1 / (1 + j u) = (1 - j u) / (1 + u^2)
+        const yRe = 1 / den;
+        const yIm = -u / den;
+        const mRe = aRe + bRe * yRe - bIm * yIm;
+        const mIm = aIm + bRe * yIm + bIm * yRe;
+        r[2 * i] = (re[i] as number) - mRe;
+        r[2 * i + 1] = (im[i] as number) - mIm;
+        if (jac) {
+          // dS/du = b * (-j) y^2
+          const y2Re = yRe * yRe - yIm * yIm;
+          const y2Im = 2 * yRe * yIm;
+          const tRe = bRe * y2Re - bIm * y2Im;
+          const tIm = bRe * y2Im + bIm * y2Re;
+          const dRe = tIm; // (-j)(tRe + j tIm) = tIm - j tRe
+          const dIm = -tRe;
+          const k = 2 * i * 6;
+          jac.set([1, 0, yRe, -yIm, -g * dRe, dx * dRe], k);
+          jac.set([0, 1, yIm, yRe, -g * dIm, dx * dIm], k + 6);
+        }
+      }
+      return true;
+    },
+  };
+  // Start: the linear least-squares a and b for the located centre and width.
+  const g0 = 2;
+  let syy = 0;
+  let sy = { re: 0, im: 0 };
+  let ss = { re: 0, im: 0 };
+  let sys = { re: 0, im: 0 };
+  for (let i = 0; i < n; i++) {
+    const u = g0 * (x[i] as number);
+    const den = 1 + u * u;
+    const yRe = 1 / den;
+    const yIm = -u / den;
+    const sRe = re[i] as number;
+    const sIm = im[i] as number;
+    syy += yRe * yRe + yIm * yIm;
+    sy = { re: sy.re + yRe, im: sy.im + yIm };
+    ss = { re: ss.re + sRe, im: ss.im + sIm };
+    // conj(y) * S
+    sys = { re: sys.re + yRe * sRe + yIm * sIm, im: sys.im + yRe * sIm - yIm * sRe };
+  }
+  // Normal equations [n, sy; conj(sy), syy] [a; b] = [ss; sys]
+  const detRe = n * syy - (sy.re * sy.re + sy.im * sy.im);
+  const numB = {
+    re: n * sys.re - (sy.re * ss.re + sy.im * ss.im),
+    im: n * sys.im - (sy.re * ss.im - sy.im * ss.re),
+  };
+  const b0 = { re: numB.re / detRe, im: numB.im / detRe };
+  const a0 = {
+    re: (ss.re - (sy.re * b0.re - sy.im * b0.im)) / n,
+    im: (ss.im - (sy.re * b0.im + sy.im * b0.re)) / n,
+  };
+  let params: ArrayLike<number> = [a0.re, a0.im, b0.re, b0.im, 0, g0];
+  const weights = new Float64Array(2 * n);
+  const angularWeights = (p: ArrayLike<number>) => {
+    for (let i = 0; i < n; i++) {
+      const u = (p[5] as number) * ((x[i] as number) - (p[4] as number));
+      const w = 1 / (1 + u * u);
+      weights[2 * i] = w;
+      weights[2 * i + 1] = w;
+    }
+    problem.weights = weights;
+  };
+  // MAT 58 loop plan "fwfwc": fit unweighted, weight, fit, weight, fit to convergence.
+  let result = levenbergMarquardt(problem, params, { maxIterations: 50 });
+  for (let pass = 0; pass < 2; pass++) {
+    params = result.params;
+    angularWeights(params);
+    result = levenbergMarquardt(problem, params);
+  }
+  const [aRe, aIm, bRe, bIm, x0, g] = Array.from(result.params) as [
+    number,
+    number,
+    number,
+    number,
+    number,
+    number,
+  ];
+  const cov = result.covariance;
+  const f0Hz = fc + s * x0;
+  const loadedQ = (g * f0Hz) / (2 * s);
+  const dQdx0 = g / 2;
+  const dQdg = f0Hz / (2 * s);
+  const varQ =
+    dQdx0 * dQdx0 * (cov[4 * 6 + 4] as number) +
+    2 * dQdx0 * dQdg * (cov[4 * 6 + 5] as number) +
+    dQdg * dQdg * (cov[5 * 6 + 5] as number);
+  const r = new Float64Array(2 * n);
+  problem.evaluate(result.params, r, null);
+  let num = 0;
+  let den = 0;
+  for (let i = 0; i < n; i++) {
+    const w = weights[2 * i] as number;
+    num += w * ((r[2 * i] as number) ** 2 + (r[2 * i + 1] as number) ** 2);
+    den += w;
+  }
+  const detuned = Math.hypot(aRe, aIm);
+  const tuned = Math.hypot(aRe + bRe, aIm + bIm);
+  const diameter = Math.hypot(bRe, bIm) / detuned;
+  const widthHz = f0Hz / loadedQ;
+  const a = 1 - (tuned / detuned) ** 2;
+  const notch =
+    diameter < 1
+      ? { unloadedQ: loadedQ / (1 - diameter), externalQ: loadedQ / diameter }
+      : { unloadedQ: null, externalQ: null };
+  return {
+    method: 'complex-circle',
+    f0Hz,
+    f0UncertaintyHz: s * Math.sqrt(cov[4 * 6 + 4] as number),
+    loadedQ,
+    loadedQUncertainty: Math.sqrt(Math.max(varQ, 0)),
+    depthDb: 20 * Math.log10(detuned / tuned),
+    depthFraction: a,
+    baselineAtF0: detuned * detuned,
+    baselineSlopePerHz: 0,
+    residualRms: Math.sqrt(num / den),
+    halfDepthBandwidthHz: widthHz,
+    twoToneResolutionHz: widthHz / Math.sqrt(3),
+    ...notch,
+    qCircleDiameter: diameter,
+    pointsPerLinewidth: pointsWithin(Float64Array.from(frequencyHz), f0Hz - widthHz / 2, f0Hz + widthHz / 2),
+    pointsUsed: n,
+    iterations: result.iterations,
+  };
+}
+
+function pick(values: ArrayLike<number>, indices: number[]): Float64Array {
+  const out = new Float64Array(indices.length);
+  indices.forEach((k, i) => (out[i] = values[k] as number));
+  return out;
+}
+
+function describeHz(hz: number): string {
+  if (hz >= 1e9) return `${(hz / 1e9).toPrecision(7)} GHz`;
+  if (hz >= 1e6) return `${(hz / 1e6).toPrecision(6)} MHz`;
+  if (hz >= 1e3) return `${(hz / 1e3).toPrecision(4)} kHz`;
+  return `${hz.toPrecision(3)} Hz`;
+}
+
+function fitCandidate(
+  trace: Trace,
+  f: Float64Array,
+  power: Float64Array,
+  c: Candidate,
+  all: Candidate[],
+): DipFit {
+  const idx = windowOf(f, c, all);
+  const fw = pick(f, idx);
+  // Slope of the baseline across the window from its two ends (start value only).
+  const first = idx[0] as number;
+  const last = idx[idx.length - 1] as number;
+  const edgeMean = (from: number, to: number) => {
+    let s = 0;
+    let k = 0;
+    for (let i = from; i <= to; i++) {
+      s += power[i] as number;
+      k++;
+    }
+    return s / k;
+  };
+  const m = Math.max(1, Math.floor(idx.length / 20));
+  const lowLevel = edgeMean(first, Math.min(first + m, last));
+  const highLevel = edgeMean(Math.max(last - m, first), last);
+  const span = (f[last] as number) - (f[first] as number);
+  const start = {
+    f0Hz: f[c.index] as number,
+    widthHz: c.widthHz,
+    depth: c.depth,
+    baseline: Math.max(lowLevel, highLevel, power[c.index] as number),
+    slopePerHz: span > 0 ? (highLevel - lowLevel) / span : 0,
+  };
+  start.baseline = (lowLevel + highLevel) / 2 || start.baseline;
+  if (trace.kind === 'complex') return fitComplexDip(fw, pick(trace.re, idx), pick(trace.im, idx), start);
+  return fitScalarDip(fw, pick(power, idx), start);
+}
+
+/**
+ * Finds and fits every dip of a trace. The deepest is the meter's resonance (`main`); any other
+ * is a spurious response. Throws ResonanceError with a plain message when the trace cannot give
+ * a resonance: no dip, a dip at the edge of the sweep, too few points per linewidth, frequencies
+ * that do not rise steadily.
+ */
+export function fitResonances(trace: Trace, options: FitOptions = {}): ResonanceReport {
+  const { f, power } = requireTrace(trace);
+  const n = f.length;
+  const { candidates } = findDips(f, power);
+  const main = candidates[0];
+  if (!main) {
+    throw new ResonanceError(
+      'no-dip',
+      `no dip found: nothing in the ${describeHz((f[n - 1] as number) - (f[0] as number))} sweep stands clear of the noise by more than 1 % of the level`,
+    );
+  }
+  const minPoints = options.minPointsPerLinewidth ?? 4;
+  const low = f[0] as number;
+  const high = f[n - 1] as number;
+  const atEdge = (c: Candidate) =>
+    c.left <= 0 ||
+    c.right >= n - 1 ||
+    (f[c.index] as number) - c.widthHz < low ||
+    (f[c.index] as number) + c.widthHz > high;
+  if (atEdge(main)) {
+    throw new ResonanceError(
+      'edge',
+      `the dip near ${describeHz(f[main.index] as number)} lies at the edge of the sweep (${describeHz(low)} to ${describeHz(high)}): sweep at least one linewidth beyond it on both sides`,
+    );
+  }
+  const across = main.right - main.left;
+  if (across < minPoints) {
+    throw new ResonanceError(
+      'undersampled',
+      `too few points per linewidth: ${across} points across the half-depth width of the dip near ${describeHz(f[main.index] as number)} (at least ${minPoints} are needed); sweep with a finer step`,
+    );
+  }
+  let mainFit: DipFit;
+  try {
+    mainFit = fitCandidate(trace, f, power, main, candidates);
+  } catch (e) {
+    throw new ResonanceError(
+      'no-fit',
+      `the dip near ${describeHz(f[main.index] as number)} could not be fitted: ${e instanceof LsqError ? e.message : String(e)}`,
+    );
+  }
+  const notes: string[] = [];
+  if (mainFit.f0Hz < low || mainFit.f0Hz > high) {
+    throw new ResonanceError(
+      'edge',
+      `the fitted resonance ${describeHz(mainFit.f0Hz)} lies outside the sweep`,
+    );
+  }
+  const spurious: DipFit[] = [];
+  for (const c of candidates.slice(1)) {
+    if (atEdge(c) || c.right - c.left < minPoints) {
+      notes.push(
+        `a further dip near ${describeHz(f[c.index] as number)} (${(-10 * Math.log10(1 - Math.min(c.depth, 0.999))).toFixed(2)} dB) is at the edge or too narrow to fit`,
+      );
+      continue;
+    }
+    try {
+      const fit = fitCandidate(trace, f, power, c, candidates);
+      // A dip the detector saw only through a bent baseline fits to nothing: keep real ones.
+      if (
+        fit.depthFraction >= 0.01 &&
+        fit.pointsPerLinewidth >= minPoints &&
+        fit.f0UncertaintyHz < 0.1 * fit.halfDepthBandwidthHz &&
+        Math.abs(fit.f0Hz - (f[c.index] as number)) < 2 * c.widthHz
+      )
+        spurious.push(fit);
+    } catch {
+      notes.push(`a further dip near ${describeHz(f[c.index] as number)} could not be fitted`);
+    }
+  }
+  if (spurious.length > 0 || notes.length > 0)
+    notes.unshift('more than one dip: the extra ones are spurious responses of the meter');
+  if (mainFit.depthDb < 1) notes.push(`the dip is shallow (${mainFit.depthDb.toFixed(2)} dB)`);
+  return { main: mainFit, spurious, notes };
+}

@@ -1,0 +1,233 @@
+// End to end in browser mode on the real service: the demo lab in a temporary lab file, a fixed
+// service clock (2026-12-01) and the same date in the page, the built renderer served by the
+// loopback server, driven in Debian's Chromium through page objects. Records a check through the
+// form (closing and reopening the window on the way) and finds it in the meter's history.
+// Leaves screenshots of each view in test-output/.
+import { existsSync } from 'node:fs';
+import { mkdir, mkdtemp, rm } from 'node:fs/promises';
+import os from 'node:os';
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { chromium } from 'playwright-core';
+import type { Browser, Page } from 'playwright-core';
+import { build } from 'vite';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { openApi } from '../../app/api/open';
+import type { OpenedLab } from '../../app/api/open';
+import { fixedClock } from '../../app/api/service';
+import { startServer } from '../../app/server/server';
+import type { RunningServer } from '../../app/server/server';
+import { createLabFile } from '../../sample-lab/load';
+import { AppShell } from './pages/AppShell';
+import { MeterPage } from './pages/MeterPage';
+import { RecordCheckPage } from './pages/RecordCheckPage';
+import { RegisterPage } from './pages/RegisterPage';
+
+const CHROMIUM = process.env.DIPLEDGER_CHROMIUM ?? '/usr/bin/chromium';
+const repoRoot = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..', '..');
+const outputDir = path.join(repoRoot, 'test-output');
+const haveChromium = existsSync(CHROMIUM);
+const NOW = '2026-12-01T09:00:00.000Z';
+if (!haveChromium)
+  console.warn(`ui e2e skipped: ${CHROMIUM} not found (CI installs it: apt-get install chromium)`);
+
+/** WG-201's plan (8.2 to 12.4 GHz) with readings a few hundred kHz high, as a dial reads. */
+const PLAN_GHZ = ['8.2', '8.8', '9.3', '10', '10.7', '11.5', '12.4'];
+const readings = (ghz: string) => {
+  const f = Number(ghz);
+  return {
+    up: [(f + 0.0004).toFixed(4), (f + 0.0006).toFixed(4)],
+    down: [(f + 0.0008).toFixed(4), (f + 0.0006).toFixed(4)],
+  };
+};
+
+describe.skipIf(!haveChromium)(
+  `the views on the demo lab in Chromium${haveChromium ? '' : ` (skipped: ${CHROMIUM} missing)`}`,
+  () => {
+    let tmp: string;
+    let lab: OpenedLab;
+    let server: RunningServer;
+    let browser: Browser;
+    let page: Page;
+    let shell: AppShell;
+    const problems: string[] = [];
+    /** A full-page screenshot from the top, with no tooltip open, after checking nothing is clipped. */
+    const shot = async (name: string) => {
+      await page.mouse.move(0, 0);
+      await page.evaluate(() => window.scrollTo(0, 0));
+      expect(await shell.sidewaysOverflow()).toBeLessThanOrEqual(0);
+      // Tables scroll sideways inside their frame rather than the page: none may need to here.
+      const clipped = await page
+        .locator('.table-wrap')
+        .evaluateAll((els) => els.filter((el) => el.scrollWidth > el.clientWidth + 1).length);
+      expect(clipped).toBe(0);
+      await page.screenshot({ path: path.join(outputDir, `${name}.png`), fullPage: true });
+    };
+
+    beforeAll(async () => {
+      tmp = await mkdtemp(path.join(os.tmpdir(), 'dipledger-ui-'));
+      const distDir = path.join(tmp, 'dist');
+      await build({
+        configFile: path.join(repoRoot, 'vite.config.ts'),
+        logLevel: 'warn',
+        build: { outDir: distDir, emptyOutDir: true },
+      });
+      const file = path.join(tmp, 'demo.dipledger');
+      const clock = fixedClock(NOW);
+      await createLabFile(file, true, { clock });
+      lab = openApi(file, { clock });
+      server = await startServer({ api: lab.api, staticDir: distDir });
+      browser = await chromium.launch({
+        executablePath: CHROMIUM,
+        args: [
+          '--headless',
+          '--no-sandbox',
+          '--disable-gpu',
+          '--disable-quic',
+          '--no-first-run',
+          '--disable-background-networking',
+          '--disable-component-update',
+          '--disable-sync',
+        ],
+      });
+      const context = await browser.newContext({
+        viewport: { width: 1280, height: 900 },
+        colorScheme: 'light',
+        timezoneId: 'UTC',
+        locale: 'en-GB',
+      });
+      page = await context.newPage();
+      // The page's "today" is the service's: the form's default date is the check date.
+      await page.clock.setFixedTime(new Date(NOW));
+      page.on('console', (m) => m.type() === 'error' && problems.push(m.text()));
+      page.on('pageerror', (e) => problems.push(e.message));
+      page.on('response', (r) => r.status() >= 400 && problems.push(`HTTP ${r.status()} ${r.url()}`));
+      shell = new AppShell(page);
+      await mkdir(outputDir, { recursive: true });
+    }, 180_000);
+
+    afterAll(async () => {
+      await browser?.close();
+      await server?.close();
+      lab?.close();
+      if (tmp) await rm(tmp, { recursive: true, force: true });
+    });
+
+    it('shows the register with the band coverage and its gaps', async () => {
+      const register = new RegisterPage(page);
+      await register.open(server.url);
+      expect(await shell.current()).toBe('Register');
+      const gaps = await page.getByTestId('coverage-gaps').innerText();
+      expect(gaps).toContain('Gap: 8–8.2 GHz.');
+      expect(gaps).toContain('Not usable now: 60–75 GHz (WG-206)');
+      expect(await page.locator('.coverage svg .seg-gap').count()).toBe(1);
+      expect(await shell.sidewaysOverflow()).toBeLessThanOrEqual(0);
+      await shot('ui-register');
+    });
+
+    it('opens a meter page from the register, with its power limit and a chart with units', async () => {
+      await page.locator('table.register').getByRole('link', { name: 'WG-201' }).click();
+      const meter = new MeterPage(page);
+      await meter.powerLimit.waitFor();
+      expect(await meter.heading.innerText()).toContain('WG-201');
+      expect(await meter.powerLimit.innerText()).toContain('10 W (40.0 dBm)');
+      expect(await meter.state.innerText()).toContain('In service');
+      await meter.waitForChart();
+      const text = await meter.chartText();
+      expect(text).toContain('reference frequency / GHz');
+      expect(text).toContain('error / ppm');
+      expect(text).toContain('tolerance ±1000 ppm');
+      // Three checks of seven points, each point with its U bar.
+      expect(await meter.errorBarCount()).toBeGreaterThanOrEqual(21);
+      expect((await meter.checkDates())[0]).toBe('2026-09-04');
+      expect(await shell.sidewaysOverflow()).toBeLessThanOrEqual(0);
+      await shot('ui-meter');
+    });
+
+    it('records a check through the form, surviving a closed window, and shows it in the history', async () => {
+      const meter = new MeterPage(page);
+      await meter.recordButton.click();
+      const form = new RecordCheckPage(page);
+      await page.getByTestId('meter-brief').waitFor();
+      expect(await form.references()).toEqual(PLAN_GHZ.map((g) => `${g} GHz`));
+      expect(await form.standard('STD-01').innerText()).toContain(
+        'certificate AFM-2026-9557, due 2027-09-14',
+      );
+      await form.performer('Alba Quennell');
+      await form.useStandard('STD-01');
+      await form.useStandard('STD-03');
+      await form.conditions('21.6', '1008.4', '46');
+      for (const [i, g] of PLAN_GHZ.entries()) {
+        const r = readings(g);
+        await form.typePoint(i, r.up, r.down, '4.1');
+      }
+      await expect.poll(() => form.liveVerdict(6).innerText(), { timeout: 10_000 }).toContain('Pass');
+      expect(await form.liveError(3).innerText()).toMatch(/^\+\d+\.\d ppm$/);
+      await expect.poll(() => form.draftStatus.innerText(), { timeout: 10_000 }).toMatch(/Draft \d+ saved/);
+      expect(await form.review.innerText()).toContain('7 of 7 points judged');
+      await shot('ui-record');
+
+      // Close the window and open it again: the draft comes back as typed.
+      const draftUrl = page.url();
+      expect(draftUrl).toMatch(/#\/record\/draft\/\d+$/);
+      await page.goto('about:blank');
+      await page.goto(draftUrl);
+      await form.pointRows.first().waitFor();
+      expect(await form.readingValues(3)).toEqual([...readings('10').up, ...readings('10').down]);
+      expect(await page.getByLabel('Temperature / °C').inputValue()).toBe('21.6');
+      expect((await lab.api.listDrafts()).length).toBe(1);
+
+      await form.recordButton.click();
+      await page.waitForURL(/#\/meter\/WG-201$/);
+      await meter.powerLimit.waitFor();
+      await expect.poll(() => meter.checkDates()).toContain('2026-12-01');
+      expect((await meter.checkDates())[0]).toBe('2026-12-01');
+      const newest = await meter.newestCheck();
+      expect(newest.join(' | ')).toMatch(
+        /2026-12-01 \| \d+ \| 1 \| .*Alba Quennell \| 7 \| .*Pass \| .*Pass/,
+      );
+      expect(await lab.api.listDrafts()).toEqual([]);
+      const detail = await lab.api.getMeter('WG-201');
+      expect(detail.register.lastCheckDate).toBe('2026-12-01');
+      await meter.waitForChart();
+      expect(await meter.chartText()).toContain('2026-12-01');
+      // U bars are drawn with a height, not only present: about ±35 ppm on a ±200 ppm scale.
+      expect(await meter.tallestErrorBarPx()).toBeGreaterThan(20);
+      await shot('ui-meter-after');
+      await meter.chart.screenshot({ path: path.join(outputDir, 'ui-meter-chart.png') });
+    });
+
+    it('answers a fit-for-use question at a frequency', async () => {
+      await shell.go('Fit for use');
+      await page.getByLabel('Frequency, with its unit').fill('9.375 GHz');
+      await page.keyboard.press('Enter');
+      const rows = page.locator('table.use tbody tr[data-asset-id]');
+      await rows.first().waitFor();
+      const byMeter = Object.fromEntries(
+        await rows.evaluateAll((trs) =>
+          trs.map((tr) => [tr.getAttribute('data-asset-id') ?? '', (tr as HTMLElement).innerText]),
+        ),
+      ) as Record<string, string>;
+      expect(Object.keys(byMeter).sort()).toEqual(['WG-201', 'WG-208']);
+      expect(byMeter['WG-201']).toContain('Yes');
+      expect(byMeter['WG-208']).toMatch(/No: .*withdrawn/i);
+      expect(await page.getByTestId('use-correction').innerText()).toMatch(/^Add [+−]\d+\.\d\d ppm/);
+      await shot('ui-fit-for-use');
+    });
+
+    it('shows the lab standards and the settings', async () => {
+      await shell.go('Lab standards');
+      await page.locator('table.standards tbody tr').first().waitFor();
+      expect(await page.locator('tr[data-standard="STD-02"]').innerText()).toContain('2027-06-02');
+      expect(await shell.sidewaysOverflow()).toBeLessThanOrEqual(0);
+      await shot('ui-standards');
+      await shell.go('Settings');
+      const name = page.getByLabel('Name', { exact: true });
+      await name.waitFor();
+      expect(await name.inputValue()).toBe('Kestrel Row Microwave Laboratory');
+      expect(await page.getByLabel('Reliability target / %').inputValue()).toBe('95');
+      await shot('ui-settings');
+      expect(problems).toEqual([]);
+    });
+  },
+);
