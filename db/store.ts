@@ -59,12 +59,31 @@ export function openLabDb(file: string, options: OpenOptions = {}): LabDb {
     if (!memory && !options.readonly) db.pragma('journal_mode = WAL');
     db.pragma('foreign_keys = ON');
     db.pragma('synchronous = NORMAL');
+    beginWritesImmediately(db);
     if (!options.readonly) migrate(db as LabDb, options.targetVersion ?? LATEST_VERSION);
     return db as LabDb;
   } catch (e) {
     db.close();
     throw e;
   }
+}
+
+/** In WAL mode a deferred transaction that reads before it writes fails at once with "database
+ * is locked" (SQLITE_BUSY_SNAPSHOT) when another process committed in between, and busy_timeout
+ * cannot help it. So every transaction takes the write lock when it begins (BEGIN IMMEDIATE) and
+ * waits on busy_timeout for it; nested ones stay savepoints. The CLI and the running app then
+ * write the same file at once without losing a write (test/db/records-concurrency.test.ts). */
+function beginWritesImmediately(db: Database.Database): void {
+  const deferred = db.transaction.bind(db);
+  db.transaction = ((fn: (...args: never[]) => unknown) => {
+    const t = deferred(fn);
+    return Object.assign((...args: never[]) => t.immediate(...args), {
+      default: (...args: never[]) => t.immediate(...args),
+      deferred: (...args: never[]) => t.deferred(...args),
+      immediate: (...args: never[]) => t.immediate(...args),
+      exclusive: (...args: never[]) => t.exclusive(...args),
+    });
+  }) as unknown as typeof db.transaction;
 }
 
 export function schemaVersion(db: Database.Database): number {

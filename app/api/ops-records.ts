@@ -143,17 +143,47 @@ function mayGive(meaning: SignatureMeaning, person: Person, performerId: number)
     : 'a reviewer or administrator';
 }
 
-/** Everything about one revision that its signatures cover. State is left out: a signed
- * revision later marked "amended" must still verify. */
+/** Everything about one revision that its signatures cover, field by field under a named
+ * format, so a field added to CheckRecord later does not change what old signatures cover.
+ * State is left out: a signed revision later marked "amended" must still verify. */
 function signedContent(db: LabDb, meta: RevisionMeta): unknown {
-  const rec = getCheck(db, meta.checkId, meta.revision);
-  if (!rec) throw new Error(`check ${meta.checkId} revision ${meta.revision} cannot be read`);
-  const record = (({ state: _state, ...rest }: typeof rec) => rest)(rec);
+  const r = getCheck(db, meta.checkId, meta.revision);
+  if (!r) throw new Error(`check ${meta.checkId} revision ${meta.revision} cannot be read`);
   return {
     format: 'dipledger.check-record/1',
-    record,
+    record: {
+      checkId: r.checkId,
+      revision: r.revision,
+      meterAssetId: r.meterAssetId,
+      date: r.date,
+      performer: r.performer,
+      standards: r.standards,
+      method: r.method,
+      conditions: r.conditions,
+      adjusted: r.adjusted,
+      remarks: r.remarks,
+      engineVersion: r.engineVersion,
+      points: r.points.map((p) => ({
+        seq: p.seq,
+        phase: p.phase,
+        referenceHz: p.referenceHz,
+        standardAssetId: p.standardAssetId,
+        readings: p.readings.map((x) => ({ value: x.value, direction: x.direction })),
+        dipDepthDb: p.dipDepthDb,
+        result: p.result,
+      })),
+      asFoundVerdict: r.asFoundVerdict,
+      asLeftVerdict: r.asLeftVerdict,
+      recordedAt: r.recordedAt,
+    },
     amendment: meta.amendReason === null ? null : { reason: meta.amendReason, by: meta.amendedBy },
-    standardsUsed: standardsUsed(db, meta.id, meta.date).map(({ validOnCheckDate: _v, ...s }) => s),
+    standardsUsed: standardsUsed(db, meta.id, meta.date).map((s) => ({
+      assetId: s.assetId,
+      certificateId: s.certificateId,
+      issuedBy: s.issuedBy,
+      calibratedOn: s.calibratedOn,
+      dueOn: s.dueOn,
+    })),
     traceabilityExceptions: meta.exceptions,
   };
 }

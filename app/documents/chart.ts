@@ -17,7 +17,7 @@ export function niceTicks(lo: number, hi: number, count = 6): number[] {
   const span = hi - lo || Math.abs(hi) || 1;
   const raw = span / count;
   const mag = 10 ** Math.floor(Math.log10(raw));
-  const step = ([1, 2, 2.5, 5, 10].map((m) => m * mag).find((s) => s >= raw) ?? 10 * mag) as number;
+  const step = [1, 2, 2.5, 5, 10].map((m) => m * mag).find((s) => s >= raw) ?? 10 * mag;
   const first = Math.ceil(lo / step - 1e-9) * step;
   const out: number[] = [];
   for (let v = first; v <= hi + step * 1e-9; v += step) out.push(Math.abs(v) < step * 1e-9 ? 0 : v);

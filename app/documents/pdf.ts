@@ -112,7 +112,7 @@ export class Page {
         CreationDate: created,
         ModDate: created,
         ...(meta.info ?? {}),
-      } as PDFKit.DocumentInfo,
+      },
     });
     for (const [name, file] of Object.entries(FONTS)) this.doc.registerFont(name, fontBytes(file));
     this.font('regular', 9);

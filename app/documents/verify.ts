@@ -8,7 +8,6 @@
 // - every signature: the bytes it covers rebuild to its digest, the key is the signer's (the
 //   lab's key register; without a lab, only the key the record names), and Ed25519 verifies.
 import type { CheckRecord } from '../api/contract';
-import type { DocumentSignature } from './model';
 import { INFO_KEYS } from './certificate';
 import { readPdf, PdfReadError, type PdfContents } from './pdfread';
 import { decodeRecord, sha256Hex, type EmbeddedRecord } from './record';
@@ -261,7 +260,7 @@ function signatures(
     fail('signatures', 'the record carries no signatures');
     return;
   }
-  for (const s of r.signatures as DocumentSignature[]) {
+  for (const s of r.signatures) {
     const label = `signature "${s.meaning}" by ${s.signer}`;
     const payload = signaturePayload(r.signedContent, s, signaturesBefore(r.signatures, s));
     if (sha256Hex(payload) !== s.payloadSha256) {

@@ -12,6 +12,7 @@ const clock = fixedClock('2026-12-01T09:30:00.000Z');
 async function waitForGo(): Promise<void> {
   process.stdout.write('ready\n');
   await new Promise<void>((resolve) => process.stdin.once('data', () => resolve()));
+  process.stdin.pause();
 }
 
 async function main(): Promise<number> {

@@ -10,7 +10,8 @@ import { openApi } from '../../app/api/open';
 import { verifyIntegrity } from '../../app/api/ops-records';
 import { openLabDb } from '../../db/store';
 import { clock, seed } from '../fixtures/lab';
-import { CHILD } from './records-crash.test';
+
+const CHILD = path.join(path.dirname(new URL(import.meta.url).pathname), 'records-child.ts');
 
 const WRITES = 40;
 
@@ -46,8 +47,8 @@ describe('the app and the command line writing at once', () => {
     const app = start('app', file);
     const cli = start('cli', file);
     await Promise.all([app.ready, cli.ready]);
-    app.child.stdin.write('go\n');
-    cli.child.stdin.write('go\n');
+    app.child.stdin.end('go\n');
+    cli.child.stdin.end('go\n');
     const [a, c] = await Promise.all([app.done, cli.done]);
     expect(a.out).not.toMatch(/locked|busy|ERROR|FAILED/i);
     expect(c.out).not.toMatch(/locked|busy|ERROR|FAILED/i);

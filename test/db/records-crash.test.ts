@@ -15,7 +15,7 @@ import { openLabDb } from '../../db/store';
 import { verifyIntegrity } from '../../app/api/ops-records';
 import { clock, seed } from '../fixtures/lab';
 
-export const CHILD = path.join(path.dirname(new URL(import.meta.url).pathname), 'records-child.ts');
+const CHILD = path.join(path.dirname(new URL(import.meta.url).pathname), 'records-child.ts');
 const CHECKS = 5000;
 const KILLS = 20;
 

@@ -302,7 +302,7 @@ describe('numbering, replacement and refusals', () => {
 describe.skipIf(!HAS_POPPLER)('suggested interval (7.8.4.3)', () => {
   it('appears only when the lab prints suggested intervals', async () => {
     const settings = await demo.lab.api.getLab();
-    await demo.lab.api.updateLab({ ...settings, printSuggestedInterval: true } as never);
+    await demo.lab.api.updateLab({ ...settings, printSuggestedInterval: true });
     try {
       const d = await demo.lab.api.issueCertificate({ checkId: demo.newestCheckId });
       const text = pdfText(writeTemp(demo.dir, 'interval.pdf', Buffer.from(d.pdfBase64, 'base64')));
@@ -310,7 +310,7 @@ describe.skipIf(!HAS_POPPLER)('suggested interval (7.8.4.3)', () => {
       expect(text).toMatch(/Suggested calibration interval/);
       expect(text).toMatch(/\d+ months, by /);
     } finally {
-      await demo.lab.api.updateLab({ ...settings } as never);
+      await demo.lab.api.updateLab({ ...settings });
     }
   });
 });

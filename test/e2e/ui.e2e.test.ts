@@ -210,7 +210,7 @@ describe.skipIf(!haveChromium)(
       ) as Record<string, string>;
       expect(Object.keys(byMeter).sort()).toEqual(['WG-201', 'WG-208']);
       expect(byMeter['WG-201']).toContain('Yes');
-      expect(byMeter['WG-208']).toMatch(/No: .*withdrawn/i);
+      expect(byMeter['WG-208']).toMatch(/✗ No\s+WG-208 is withdrawn/);
       expect(await page.getByTestId('use-correction').innerText()).toMatch(/^Add [+−]\d+\.\d\d ppm/);
       await shot('ui-fit-for-use');
     });
