@@ -38,10 +38,13 @@ function dof(x: number): string {
   return Number.isFinite(x) ? fixed(x, x < 100 ? 1 : 0) : '∞';
 }
 
+/** Units as printed: the engine's plain-text 'degC' as °C. */
+const unitText = (unit: string) => (unit === 'degC' ? '°C' : unit);
+
 function sensitivity(c: Contribution): string {
   if (c.unit === 'Hz') return u(c.sensitivity);
   if (c.unit === '1/K') return `${u(c.sensitivity)} Hz·K`;
-  return `${u(c.sensitivity)} Hz/${c.unit}`;
+  return `${u(c.sensitivity)} Hz/${unitText(c.unit)}`;
 }
 
 function pointBlock(
@@ -92,7 +95,7 @@ function pointBlock(
       c.label,
       c.type,
       c.distribution,
-      `${u(c.standardUncertainty)} ${c.unit}`,
+      `${u(c.standardUncertainty)} ${unitText(c.unit)}`,
       sensitivity(c),
       u(c.contributionHz),
       dof(c.dof),
