@@ -65,7 +65,10 @@ export const sweepOps: OpGroup<keyof SweepApi> = (ctx) => ({
   },
 
   listSweeps(assetId) {
-    const rec = ctx.meterOr404(String(assetId));
+    // String() of a hostile object throws a TypeError (found by test/api/records-fuzz.test.ts).
+    if (typeof assetId !== 'string')
+      throw LabError.field('assetId', assetId, 'the asset id of a meter, as text');
+    const rec = ctx.meterOr404(assetId);
     return listSweepSummaries(ctx.db, rec.id);
   },
 

@@ -44,9 +44,7 @@ export const LabSettingsSchema = z.object({
   defaultHumidityUncertaintyPct: finite('humidity uncertainty').pipe(z.number().min(0).max(50)).default(5),
   printSuggestedInterval: z.boolean().default(false),
   signersMustDiffer: z.boolean('expected true or false').default(true),
-  traceabilityPolicy: z
-    .enum(['strict', 'permissive'], 'expected "strict" or "permissive"')
-    .default('strict'),
+  traceabilityPolicy: z.enum(['strict', 'permissive'], 'expected "strict" or "permissive"').default('strict'),
 });
 export type LabSettingsInput = z.input<typeof LabSettingsSchema>;
 

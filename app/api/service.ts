@@ -318,7 +318,8 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
       // with an exception shown on the record; a strict lab refuses it.
       const nearest =
         settings.traceabilityPolicy === 'permissive' && !cert
-          ? (s.certificates.find((c) => c.calibratedOn <= doc.date) ?? s.certificates[s.certificates.length - 1])
+          ? (s.certificates.find((c) => c.calibratedOn <= doc.date) ??
+            s.certificates[s.certificates.length - 1])
           : undefined;
       if (!cert && nearest) {
         exceptions.push(
@@ -582,7 +583,11 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
     },
 
     getMeter(assetId) {
-      const rec = meterOr404(String(assetId));
+      // String() of a hostile object throws a TypeError; refuse anything but text (found by
+      // test/api/records-fuzz.test.ts).
+      if (typeof assetId !== 'string')
+        throw LabError.field('assetId', assetId, 'the asset id of a meter, as text');
+      const rec = meterOr404(assetId);
       const row = registerRows(db).find((r) => r.assetId === rec.meter.assetId);
       if (!row) throw new LabError('internal', `register row missing for ${rec.meter.assetId}`);
       const detail: MeterDetail = {

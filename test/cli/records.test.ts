@@ -70,7 +70,9 @@ describe('dipledger sign / person add / check', () => {
     const before = readFileSync(file);
     const o = io(dir, { DIPLEDGER_PASSPHRASE: 'wrong-passphrase' });
     expect(await runCli(['--db', file, 'sign', '1', '--as', 'Ada Fenwick'], o)).toBe(2);
-    expect(o.stderr.join('\n')).toMatch(/passphrase does not open Ada Fenwick's signing key: nothing was signed/);
+    expect(o.stderr.join('\n')).toMatch(
+      /passphrase does not open Ada Fenwick's signing key: nothing was signed/,
+    );
     expect(o.stderr.join('\n')).not.toContain('wrong-passphrase');
     expect(readFileSync(file).equals(before)).toBe(true);
   });
@@ -79,7 +81,9 @@ describe('dipledger sign / person add / check', () => {
     const { dir, file } = await signedLab();
     const o = io(dir);
     expect(await runCli(['--db', file, 'person', 'add', 'Cy New', '--role', 'reviewer'], o)).toBe(2);
-    expect(o.stderr.join('\n')).toMatch(/--passphrase-file FILE \(or DIPLEDGER_PASSPHRASE, for automation only\)/);
+    expect(o.stderr.join('\n')).toMatch(
+      /--passphrase-file FILE \(or DIPLEDGER_PASSPHRASE, for automation only\)/,
+    );
   });
 
   it('amends with a reason and changes meter state with a reason, all audited', async () => {
@@ -94,10 +98,15 @@ describe('dipledger sign / person add / check', () => {
     expect(q.stdout.join('\n')).toBe('TW-01 is now quarantined');
     const noReason = io(dir);
     expect(await runCli(['--db', file, 'reinstate', 'TW-01'], noReason)).toBe(2);
-    expect(await runCli(['--db', file, 'reinstate', 'TW-01', '--reason', 'dial repaired and checked'], io(dir))).toBe(0);
+    expect(
+      await runCli(['--db', file, 'reinstate', 'TW-01', '--reason', 'dial repaired and checked'], io(dir)),
+    ).toBe(0);
     const a = io(dir);
     expect(await runCli(['--db', file, '--json', 'audit', '--entity', 'meter', '--id', 'TW-01'], a)).toBe(0);
-    const trail = JSON.parse(a.stdout.join('\n')) as { action: string; after: { state?: string; reason?: string } }[];
+    const trail = JSON.parse(a.stdout.join('\n')) as {
+      action: string;
+      after: { state?: string; reason?: string };
+    }[];
     expect(trail.slice(0, 2).map((e) => [e.action, e.after.state, e.after.reason])).toEqual([
       ['change-state', 'in-service', 'dial repaired and checked'],
       ['change-state', 'quarantined', 'dial slips'],
@@ -113,19 +122,27 @@ describe('dipledger integrity', () => {
     editByte(file, 'remark-ZQX-4417');
     const r = await integrity(file);
     expect(r.code).toBe(1);
-    expect(r.text).toMatch(/check 1 revision 1: the performed signature of Ada Fenwick .* does not match the record/);
+    expect(r.text).toMatch(
+      /check 1 revision 1: the performed signature of Ada Fenwick .* does not match the record/,
+    );
     expect(r.text).toMatch(/check 1 revision 1: the reviewed signature of Bo Marsh/);
     expect(r.text).toMatch(/affects: check 1 revision 1 cannot be trusted as signed/);
   });
 
   it('finds a byte edited in an audit entry and names the first broken link', async () => {
     const { dir, file } = await signedLab();
-    expect(await runCli(['--db', file, 'withdraw', 'TW-02', '--reason', 'dropped-KPW-9921'], io(dir))).toBe(0);
-    expect(await runCli(['--db', file, 'reinstate', 'TW-02', '--reason', 'repaired and checked'], io(dir))).toBe(0);
+    expect(await runCli(['--db', file, 'withdraw', 'TW-02', '--reason', 'dropped-KPW-9921'], io(dir))).toBe(
+      0,
+    );
+    expect(
+      await runCli(['--db', file, 'reinstate', 'TW-02', '--reason', 'repaired and checked'], io(dir)),
+    ).toBe(0);
     editByte(file, 'dropped-KPW-9921');
     const r = await integrity(file);
     expect(r.code).toBe(1);
-    expect(r.text).toMatch(/audit entry \d+ \(change-state meter TW-02 at [^)]+\) its content no longer matches its hash/);
+    expect(r.text).toMatch(
+      /audit entry \d+ \(change-state meter TW-02 at [^)]+\) its content no longer matches its hash/,
+    );
     expect(r.text).toMatch(/affects: the trail of meter TW-02, and the entries after it \(1 later entry\)/);
   });
 
@@ -136,7 +153,9 @@ describe('dipledger integrity', () => {
     lab.close();
     const db = new Database(file);
     db.exec('DROP TRIGGER reading_locked_update');
-    db.prepare('UPDATE reading SET value = value + 1000 WHERE point_id = (SELECT min(id) FROM check_point)').run();
+    db.prepare(
+      'UPDATE reading SET value = value + 1000 WHERE point_id = (SELECT min(id) FROM check_point)',
+    ).run();
     // 11.70: the performer's signature of check 1 copied onto check 2 must not verify there.
     db.prepare(
       `INSERT INTO check_signature (revision_id, seq, person_id, key_id, printed_name, role, meaning, signed_at,
@@ -160,7 +179,9 @@ describe('dipledger backup', () => {
     const writer = new Database(file);
     writer.pragma('busy_timeout = 5000');
     writer.exec('BEGIN IMMEDIATE');
-    writer.prepare("INSERT INTO person (name, role, created_at) VALUES ('Uncommitted Person', 'technician', 't')").run();
+    writer
+      .prepare("INSERT INTO person (name, role, created_at) VALUES ('Uncommitted Person', 'technician', 't')")
+      .run();
     const o = io(dir);
     expect(await runCli(['--db', file, 'backup', 'copy.dipledger'], o)).toBe(0);
     expect(o.stdout.join('\n')).toMatch(/the copy passes SQLite's integrity check/);
@@ -179,7 +200,8 @@ describe('dipledger backup', () => {
     // Restore, as README "Backups and restoring" says: check the copy, set the damaged file
     // aside with its -wal and -shm, copy the backup into place.
     expect((await integrity(copy)).code).toBe(0);
-    for (const ext of ['', '-wal', '-shm']) if (existsSync(file + ext)) copyFileSync(file + ext, `${file}.damaged${ext}`);
+    for (const ext of ['', '-wal', '-shm'])
+      if (existsSync(file + ext)) copyFileSync(file + ext, `${file}.damaged${ext}`);
     for (const ext of ['-wal', '-shm']) rmSync(file + ext, { force: true });
     copyFileSync(copy, file);
     const back = await integrity(file);
