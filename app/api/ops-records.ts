@@ -11,6 +11,7 @@ import { z } from 'zod';
 import { ENGINE_VERSION } from '../engine';
 import { appendAudit, auditHash, GENESIS_HASH } from '../../db/queries/audit';
 import { getCheck, insertRevision } from '../../db/queries/checks';
+import { insertSweeps } from '../../db/queries/sweeps';
 import { findPersonByName, insertPerson } from '../../db/queries/people';
 import {
   allKeys,
@@ -696,6 +697,12 @@ export const recordsOps: OpGroup<keyof RecordsApi> = (ctx) => {
             })),
           },
           at,
+        );
+        // Swept points keep their raw trace and fit in the new revision too.
+        insertSweeps(
+          db,
+          a.checkId,
+          prepared.points.flatMap((p, i) => (p.sweep ? [{ seq: i + 1, sweep: p.sweep }] : [])),
         );
         const view = revisionView(ctx, a.checkId, revision);
         if (view.changes.length === 0)

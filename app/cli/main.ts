@@ -178,7 +178,10 @@ export async function runCli(argv: string[], io: CliIo): Promise<number> {
       case 'record': {
         // Trace files named by swept points are read here, beside the document (issue 3).
         const docFile = arg('FILE.json');
-        const doc = resolveSweepFiles(readJsonFile(docFile, io.cwd), path.dirname(path.resolve(io.cwd, docFile)));
+        const doc = resolveSweepFiles(
+          readJsonFile(docFile, io.cwd),
+          path.dirname(path.resolve(io.cwd, docFile)),
+        );
         const rec = await open().api.recordCheck(doc as never);
         print(rec, () => checkText(rec));
         return values['require-pass'] && rec.asLeftVerdict !== 'pass' ? 1 : 0;

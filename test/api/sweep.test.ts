@@ -199,3 +199,25 @@ describe('dial charts', () => {
     lab.close();
   });
 });
+
+describe('amending a check by the sweep method', () => {
+  it('keeps each swept point trace and fit in the new revision (ISO/IEC 17025:2017 7.5.2: the amended record is complete)', async () => {
+    const lab = await seededLab();
+    await lab.api.enrolSigner({ name: 'Ada Fenwick', passphrase: 'ada-passphrase-1' });
+    await lab.api.enrolSigner({ name: 'Bo Marsh', passphrase: 'bo-passphrase-22' });
+    const doc = sweptCheck([{ dialSetting: '10 GHz', sweep: { text: traceCsv(7), name: 'p1.csv' } }]);
+    const rec = await lab.api.recordCheck(doc as never);
+    await lab.api.signCheck({ checkId: rec.checkId, person: 'Ada Fenwick', passphrase: 'ada-passphrase-1' });
+    await lab.api.signCheck({ checkId: rec.checkId, person: 'Bo Marsh', passphrase: 'bo-passphrase-22' });
+    const amended = await lab.api.amendCheck({
+      checkId: rec.checkId,
+      reason: 'remark added after review',
+      document: { ...doc, remarks: 'trace taken with the long cable' } as never,
+    });
+    expect(amended.record.revision).toBe(2);
+    const sweeps = await lab.api.getSweeps(rec.checkId);
+    expect(sweeps.map((s) => [s.revision, s.seq])).toEqual([[2, 1]]);
+    expect(sweeps[0]?.frequencyHz).toHaveLength(1201);
+    lab.close();
+  });
+});
