@@ -15,6 +15,7 @@ const FILES: ReadonlyArray<readonly [number, string]> = [
   [3, '0003_sweeps.sql'],
   [4, '0004_drafts.sql'],
   [5, '0005_documents.sql'],
+  [6, '0006_summaries.sql'],
 ];
 
 function load(version: number, file: string): Migration {

@@ -25,7 +25,8 @@ import {
   type IntervalSuggestion,
   type VariablesFrequency,
 } from '../engine/intervals';
-import { listMeterRecords, registerRows, type MeterRecord } from '../../db/queries/meters';
+import { getMeterByAsset, listMeterRecords, registerRows, type MeterRecord } from '../../db/queries/meters';
+import { registerRowOfMeter } from '../../db/queries/summaries';
 import {
   certificatesUsed,
   meterHistory,
@@ -47,6 +48,7 @@ import type {
 import type { OpGroup, ServiceContext } from './context';
 import { LabError, describe } from './errors';
 import { daysBetween } from './support';
+import { cachedAttributeRecords, cachedRegisterFlags } from './summaries';
 
 const DAYS_PER_YEAR = 365.25;
 /** The band the lab's coverage is judged over (the product's range). */
@@ -120,9 +122,10 @@ interface MeterAnalysis {
   steps: StepReport[];
 }
 
-function registerRowOf(ctx: ServiceContext, assetId: string): RegisterRow {
-  const row = registerRows(ctx.db).find((r) => r.assetId === assetId);
-  if (!row) throw new LabError('internal', `register row missing for ${assetId}`);
+function registerRowOf(ctx: ServiceContext, rec: MeterRecord): RegisterRow {
+  // One meter's row, not the whole register searched (the fleet benchmark's page figure).
+  const row = registerRowOfMeter(ctx.db, rec.id);
+  if (!row) throw new LabError('internal', `register row missing for ${rec.meter.assetId}`);
   return ctx.registerRow(row);
 }
 
@@ -329,22 +332,9 @@ function attributeRecords(
   ctx: ServiceContext,
   family: string,
 ): { records: AttributeRecord[]; meters: string[] } {
-  const records: AttributeRecord[] = [];
-  const meters: string[] = [];
-  for (const r of listMeterRecords(ctx.db)) {
-    if (bandFamily(r.meter) !== family) continue;
-    meters.push(r.meter.assetId);
-    const checks = meterHistory(ctx.db, r.id);
-    for (let i = 1; i < checks.length; i++) {
-      const prev = checks[i - 1] as HistoryCheckRow;
-      const c = checks[i] as HistoryCheckRow;
-      const found = c.points.filter((p) => p.phase === 'as-found');
-      const days = daysBetween(prev.date, c.date);
-      if (found.length === 0 || days <= 0) continue;
-      records.push({ interval: days / DAYS_PER_YEAR, inTolerance: !found.some(outOfTolerance) });
-    }
-  }
-  return { records, meters };
+  // From the per-meter summaries (app/api/summaries.ts): reading and decoding every meter's
+  // history in the group made one meter's page cost seconds at fleet scale.
+  return cachedAttributeRecords(ctx.db, (g) => bandFamily(g) === family);
 }
 
 function suggest(ctx: ServiceContext, a: MeterAnalysis, settings: LabSettings): IntervalSuggestion {
@@ -659,11 +649,18 @@ function parseFrequencyOr400(value: unknown): number {
 
 /** Short words for the register (warnings and stops only), used by the due list. */
 export function registerFlags(ctx: ServiceContext, row: RegisterRow): string[] {
-  const rec = listMeterRecords(ctx.db).find((r) => r.meter.assetId === row.assetId);
-  if (!rec) return [];
-  return analyseMeter(ctx, rec, row)
-    .flags.filter((f) => f.severity !== 'info')
-    .map((f) => f.short);
+  return registerFlagsAll(ctx, [row])[0] ?? [];
+}
+
+/** Register flag words of many rows at once, from the per-meter summaries where current. */
+export function registerFlagsAll(ctx: ServiceContext, rows: RegisterRow[]): string[][] {
+  return cachedRegisterFlags(ctx, rows, (_meterId, row) => {
+    const rec = getMeterByAsset(ctx.db, row.assetId);
+    if (!rec) return [];
+    return analyseMeter(ctx, rec, row)
+      .flags.filter((f) => f.severity !== 'info')
+      .map((f) => f.short);
+  });
 }
 
 export const historyOps: OpGroup<keyof HistoryApi> = (ctx) => ({
@@ -672,7 +669,7 @@ export const historyOps: OpGroup<keyof HistoryApi> = (ctx) => ({
       throw LabError.field('assetId', assetId, 'the asset id of a meter, such as "WG-202"');
     const rec = ctx.meterOr404(assetId);
     const settings = ctx.lab();
-    return trendReport(ctx, analyseMeter(ctx, rec, registerRowOf(ctx, rec.meter.assetId)), settings);
+    return trendReport(ctx, analyseMeter(ctx, rec, registerRowOf(ctx, rec)), settings);
   },
 
   fitForUse(query) {
@@ -687,7 +684,7 @@ export const historyOps: OpGroup<keyof HistoryApi> = (ctx) => ({
       if (typeof q.assetId !== 'string' || q.assetId.trim() === '')
         throw LabError.field('assetId', q.assetId, 'the asset id of a meter, such as "WG-202"');
       const rec = ctx.meterOr404(q.assetId);
-      const a = analyseMeter(ctx, rec, registerRowOf(ctx, rec.meter.assetId));
+      const a = analyseMeter(ctx, rec, registerRowOf(ctx, rec));
       return { frequencyHz: hz, asOf: today, answers: [useAnswer(ctx, a, hz)], notes } satisfies UseReport;
     }
     const rows = registerRows(ctx.db).map((r) => ctx.registerRow(r));

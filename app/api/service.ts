@@ -63,7 +63,8 @@ import type { ServiceContext, SyncOps } from './context';
 import type { CoreApi } from './contract';
 import { draftsOps } from './ops-drafts';
 import { recordsOps } from './ops-records';
-import { historyOps, registerFlags } from './ops-history';
+import { historyOps, registerFlagsAll } from './ops-history';
+import { registerRowOfMeter } from '../../db/queries/summaries';
 import { sweepOps } from './ops-sweep';
 import { documentsOps } from './ops-documents';
 
@@ -588,7 +589,7 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
       if (typeof assetId !== 'string')
         throw LabError.field('assetId', assetId, 'the asset id of a meter, as text');
       const rec = meterOr404(assetId);
-      const row = registerRows(db).find((r) => r.assetId === rec.meter.assetId);
+      const row = registerRowOfMeter(db, rec.id);
       if (!row) throw new LabError('internal', `register row missing for ${rec.meter.assetId}`);
       const detail: MeterDetail = {
         meter: rec.meter,
@@ -735,7 +736,8 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
         .map(registerRow)
         .filter((r) => r.state !== 'withdrawn' && (r.daysToDue === null || r.daysToDue <= within))
         .sort((a, b) => (a.daysToDue ?? -Infinity) - (b.daysToDue ?? -Infinity));
-      return rows.map((r) => ({ ...r, flags: registerFlags(ctx, r) }));
+      const flags = registerFlagsAll(ctx, rows);
+      return rows.map((r, i) => ({ ...r, flags: flags[i] ?? [] }));
     },
 
     listStandards() {

@@ -14,8 +14,19 @@ export const DEFAULT_COVERAGE_PROBABILITY = 0.9545;
 /** Quantile of Student's t with dof degrees of freedom (dof may be fractional; Infinity = normal). */
 export function tQuantile(p: number, dof: number): number {
   if (dof === Infinity) return stdlibNormalQuantile(p, 0, 1);
-  return stdlibTQuantile(p, dof);
+  // The same few (p, dof) pairs come back thousands of times (drift predictions, budgets), and
+  // each inversion of the incomplete beta costs tens of microseconds: remember the answers.
+  const key = `${p}|${dof}`;
+  const known = T_QUANTILES.get(key);
+  if (known !== undefined) return known;
+  if (T_QUANTILES.size >= T_QUANTILE_MEMO_SIZE) T_QUANTILES.clear();
+  const t = stdlibTQuantile(p, dof);
+  T_QUANTILES.set(key, t);
+  return t;
 }
+
+const T_QUANTILE_MEMO_SIZE = 4096;
+const T_QUANTILES = new Map<string, number>();
 
 export function normalCdf(x: number, mu = 0, sigma = 1): number {
   return stdlibNormalCdf(x, mu, sigma);

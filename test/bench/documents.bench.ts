@@ -85,8 +85,8 @@ export async function figures(): Promise<BenchFigure[]> {
   });
   const batchS = (performance.now() - t) / 1000;
   return [
-    // bare / certificate: 1 would mean the layout costs nothing; the floor allows 25 times.
-    { name: 'bare page time / certificate time (one run)', value: bareMs / certMs, floor: 1 / 25 },
+    // bare / certificate: 1 would mean the layout costs nothing; issue 8's target allows 3 times.
+    { name: 'bare page time / certificate time (one run)', value: bareMs / certMs, floor: 1 / 3 },
     // Floor: a batch of 100 in under a minute on a loaded two-core build machine.
     { name: `certificates per second (batch of ${batch.length})`, value: batch.length / batchS, floor: 2 },
   ];

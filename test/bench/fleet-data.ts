@@ -44,8 +44,9 @@ function meterOf(i: number): FleetMeter {
   const [lo, hi, construction, port] = BANDS[i % BANDS.length] as (typeof BANDS)[number];
   const minHz = lo * 1e9;
   const maxHz = hi * 1e9;
-  const planHz = Array.from({ length: POINTS }, (_, k) =>
-    Math.round((minHz + ((maxHz - minHz) * (k + 0.5)) / POINTS) / 1e6) * 1e6,
+  const planHz = Array.from(
+    { length: POINTS },
+    (_, k) => Math.round((minHz + ((maxHz - minHz) * (k + 0.5)) / POINTS) / 1e6) * 1e6,
   );
   // One meter in five reads a micrometer in divisions through a chart.
   const divisions = construction === 'coaxial' || rnd() < 0.2;
@@ -123,7 +124,7 @@ export function historyCsv(from: number, to: number): { csv: string; checks: num
     const adjustYear = rnd() < 0.1 ? FIRST_YEAR + 5 + Math.floor(rnd() * (YEARS - 5)) : -1;
     const dipStartDb = 2 + rnd() * 2;
     const dipFadeDbPerYear = rnd() < 0.15 ? 0.04 + rnd() * 0.06 : rnd() * 0.01;
-    const resolutionHz = m.input.dialKind === 'direct' ? (m.planHz[0] as number) < 18e9 ? 0.5e6 : 2e6 : 0;
+    const resolutionHz = m.input.dialKind === 'direct' ? ((m.planHz[0] as number) < 18e9 ? 0.5e6 : 2e6) : 0;
     for (let y = FIRST_YEAR; y <= LAST_YEAR; y++) {
       if (y === stepYear) offsetPpm += 400 + gauss() * 50;
       const date = `${y}-${String(month).padStart(2, '0')}-${String(day).padStart(2, '0')}`;
