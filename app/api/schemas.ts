@@ -159,11 +159,13 @@ export const CheckPointSchema = z
     if (p.sweep === undefined) {
       if (p.reference === undefined) issue('reference', 'expected a frequency such as "9.3 GHz"');
       if (p.readings.length < 2) issue('readings', 'expected at least two readings per point');
-      if (p.dialSetting !== undefined) issue('dialSetting', 'expected a sweep with a dial setting (sweep method)');
+      if (p.dialSetting !== undefined)
+        issue('dialSetting', 'expected a sweep with a dial setting (sweep method)');
       return;
     }
     if (p.dialSetting === undefined) issue('dialSetting', 'expected the graduation the dial was set to');
-    if (p.readings.length > 0) issue('readings', 'expected no readings on a swept point (the sweep is the reading)');
+    if (p.readings.length > 0)
+      issue('readings', 'expected no readings on a swept point (the sweep is the reading)');
     if (p.reference !== undefined)
       issue('reference', 'expected no reference on a swept point (the fitted resonance is the reference)');
   });

@@ -189,7 +189,14 @@ export function ErrorChart({ meter, checks }: { meter: Meter; checks: CheckRecor
               line={{ stroke: look.color, strokeOpacity: 0.5 }}
               isAnimationActive={false}
             >
-              <ErrorBar dataKey="uPpm" direction="y" width={5} stroke={look.color} strokeWidth={1.2} />
+              <ErrorBar
+                dataKey="uPpm"
+                direction="y"
+                width={5}
+                stroke={look.color}
+                strokeWidth={1.2}
+                isAnimationActive={false}
+              />
             </Scatter>
           );
         })}

@@ -212,7 +212,7 @@ describe('amending a check by the sweep method', () => {
     const amended = await lab.api.amendCheck({
       checkId: rec.checkId,
       reason: 'remark added after review',
-      document: { ...doc, remarks: 'trace taken with the long cable' } as never,
+      document: { ...doc, remarks: 'trace taken with the long cable' },
     });
     expect(amended.record.revision).toBe(2);
     const sweeps = await lab.api.getSweeps(rec.checkId);

@@ -39,10 +39,20 @@ export class MeterPage {
   }
 
   /** Height on screen of the tallest U bar, px. */
+  /** Height of the tallest U bar once the chart has settled (two equal reads 100 ms apart). */
   async tallestErrorBarPx(): Promise<number> {
-    return this.chart
-      .locator('.recharts-errorBar')
-      .evaluateAll((els) => Math.max(0, ...els.map((el) => el.getBoundingClientRect().height)));
+    const read = () =>
+      this.chart
+        .locator('.recharts-errorBar')
+        .evaluateAll((els) => Math.max(0, ...els.map((el) => el.getBoundingClientRect().height)));
+    let last = await read();
+    for (let i = 0; i < 30; i++) {
+      await this.chart.page().waitForTimeout(100);
+      const now = await read();
+      if (now === last) return now;
+      last = now;
+    }
+    return last;
   }
 
   async checkDates(): Promise<string[]> {
