@@ -8,10 +8,10 @@
 // keep the original and say what changed, by whom, when); RFC 8785 (canonical JSON); RFC 8032
 // (Ed25519).
 import { z } from 'zod';
-import { ENGINE_VERSION } from '../engine';
 import { appendAudit, auditHash, GENESIS_HASH } from '../../db/queries/audit';
 import { getCheck, insertRevision } from '../../db/queries/checks';
 import { insertSweeps } from '../../db/queries/sweeps';
+import { revisionRows, sweepRows } from './check-rows';
 import { findPersonByName, insertPerson } from '../../db/queries/people';
 import {
   allKeys,
@@ -668,42 +668,11 @@ export const recordsOps: OpGroup<keyof RecordsApi> = (ctx) => {
           db,
           a.checkId,
           revision,
-          {
-            meterId: prepared.meter.id,
-            performerId: performer.id,
-            date: prepared.doc.date,
-            method: prepared.doc.method,
-            conditions: prepared.conditions,
-            adjusted: prepared.doc.adjusted,
-            remarks: prepared.doc.remarks,
-            decisionRule: ctx.lab().decisionRule,
-            engineVersion: ENGINE_VERSION,
-            asFoundVerdict: prepared.asFoundVerdict,
-            asLeftVerdict: prepared.asLeftVerdict,
-            worstUsedFraction: prepared.worstUsedFraction,
-            traceabilityExceptions: prepared.exceptions,
-            amendment: { reason: a.reason, by: actor },
-            standards: prepared.standards.map((s) => ({
-              standardId: s.record.id,
-              certificateRowId: s.certificate.id,
-            })),
-            points: prepared.points.map((p) => ({
-              phase: p.phase,
-              referenceHz: p.referenceHz,
-              standardId: p.standard.id,
-              dipDepthDb: p.dipDepthDb,
-              readings: p.readings,
-              result: p.result,
-            })),
-          },
+          revisionRows(prepared, performer.id, ctx.lab().decisionRule, { reason: a.reason, by: actor }),
           at,
         );
         // Swept points keep their raw trace and fit in the new revision too.
-        insertSweeps(
-          db,
-          a.checkId,
-          prepared.points.flatMap((p, i) => (p.sweep ? [{ seq: i + 1, sweep: p.sweep }] : [])),
-        );
+        insertSweeps(db, a.checkId, sweepRows(prepared));
         const view = revisionView(ctx, a.checkId, revision);
         if (view.changes.length === 0)
           throw LabError.field(

@@ -4,7 +4,6 @@
 import { parse as parseCsv } from 'csv-parse/sync';
 import { stringify as stringifyCsv } from 'csv-stringify/sync';
 import {
-  ENGINE_VERSION,
   checkInBand,
   formatFrequency,
   evaluatePoint,
@@ -60,6 +59,7 @@ import {
   type Clock,
 } from './support';
 import type { ServiceContext, SyncOps } from './context';
+import { revisionRows, sweepRows } from './check-rows';
 import type { CoreApi } from './contract';
 import { draftsOps } from './ops-drafts';
 import { recordsOps } from './ops-records';
@@ -481,41 +481,8 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
       c.performer ??
       findPersonByName(db, c.doc.performer) ??
       insertPerson(db, { name: c.doc.performer, role: 'technician' }, at);
-    const checkId = insertCheck(
-      db,
-      {
-        meterId: c.meter.id,
-        performerId: performer.id,
-        date: c.doc.date,
-        method: c.doc.method,
-        conditions: c.conditions,
-        adjusted: c.doc.adjusted,
-        remarks: c.doc.remarks,
-        decisionRule: lab().decisionRule,
-        engineVersion: ENGINE_VERSION,
-        asFoundVerdict: c.asFoundVerdict,
-        asLeftVerdict: c.asLeftVerdict,
-        worstUsedFraction: c.worstUsedFraction,
-        traceabilityExceptions: c.exceptions,
-        standards: c.standards.map((s) => ({ standardId: s.record.id, certificateRowId: s.certificate.id })),
-        points: c.points.map((p) => ({
-          phase: p.phase,
-          referenceHz: p.referenceHz,
-          standardId: p.standard.id,
-          dipDepthDb: p.dipDepthDb,
-          readings: p.readings,
-          result: p.result,
-        })),
-      },
-      at,
-    );
-    // Sweep method (issue 3): raw traces and fits of swept points, by point number (insertCheck
-    // numbers points 1, 2, ... in order).
-    insertSweeps(
-      db,
-      checkId,
-      c.points.flatMap((p, i) => (p.sweep ? [{ seq: i + 1, sweep: p.sweep }] : [])),
-    );
+    const checkId = insertCheck(db, revisionRows(c, performer.id, lab().decisionRule), at);
+    insertSweeps(db, checkId, sweepRows(c));
     appendAudit(db, {
       at,
       actor,
