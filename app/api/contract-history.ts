@@ -41,6 +41,9 @@ export interface FrequencyTrend {
   } | null;
   /** First date the 95 % prediction band reaches the tolerance (within 30 years), if any. */
   projectedExitDate: string | null;
+  /** The 95 % prediction band of a new check sampled from the segment start to past the due
+   * date (and the exit, when near), for charts; empty without a fit. */
+  band: { date: string; predictedPpm: number; halfWidthPpm: number }[];
 }
 
 export type HistoryFlagCode =

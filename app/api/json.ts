@@ -1,11 +1,25 @@
 // JSON that keeps Infinity and NaN (a Type B input with infinite degrees of freedom is common):
 // non-finite numbers travel as the strings "Infinity", "-Infinity" and "NaN".
 export function encodeJson(value: unknown, space?: number): string {
-  return JSON.stringify(
-    value,
-    (_key, v: unknown) => (typeof v === 'number' && !Number.isFinite(v) ? String(v) : v),
-    space,
-  );
+  // The same text a replacer turning non-finite numbers into strings gives, but a replacer puts
+  // JSON.stringify on its slow path (a bulk import encodes every point's result), so the
+  // non-finite numbers are replaced in a copy first (test/api/json-encode.test.ts compares both).
+  return JSON.stringify(nonFiniteAsText(value, ''), null, space);
+}
+
+/** A copy of `v` as JSON.stringify would walk it, with non-finite numbers as strings. */
+function nonFiniteAsText(v: unknown, key: string): unknown {
+  if (typeof v === 'number') return Number.isFinite(v) ? v : String(v);
+  if (v === null || typeof v !== 'object') return v;
+  const toJson = (v as { toJSON?: unknown }).toJSON;
+  if (typeof toJson === 'function') return nonFiniteAsText(toJson.call(v, key) as unknown, key);
+  // Boxed primitives are serialised by their value, which a replacer never saw as a number.
+  if (v instanceof Number || v instanceof String || v instanceof Boolean) return v;
+  if (Array.isArray(v)) return v.map((item, i) => nonFiniteAsText(item, String(i)));
+  // No prototype, so an own key named "__proto__" stays a plain key as JSON.stringify sees it.
+  const out = Object.create(null) as Record<string, unknown>;
+  for (const k of Object.keys(v)) out[k] = nonFiniteAsText((v as Record<string, unknown>)[k], k);
+  return out;
 }
 
 export function decodeJson(text: string): unknown {

@@ -122,6 +122,19 @@ interface MeterAnalysis {
   steps: StepReport[];
 }
 
+/** Evenly spaced samples of the prediction band, enough for a smooth curve on a chart. */
+function bandSamples(
+  fromYears: number,
+  toYears: number,
+  at: (x: number) => { value: number; halfWidth: number },
+) {
+  const n = 48;
+  return Array.from({ length: n + 1 }, (_, i) => {
+    const x = fromYears + ((toYears - fromYears) * i) / n;
+    return { x, ...at(x) };
+  });
+}
+
 function registerRowOf(ctx: ServiceContext, rec: MeterRecord): RegisterRow {
   // One meter's row, not the whole register searched (the fleet benchmark's page figure).
   const row = registerRowOfMeter(ctx.db, rec.id);
@@ -201,6 +214,13 @@ function analyseMeter(ctx: ServiceContext, rec: MeterRecord, register: RegisterR
             }
           : null,
       projectedExitDate: exit === null ? null : tl.date(exit),
+      band: fit
+        ? bandSamples(
+            segmentStart,
+            Math.max(dueYears, exit === null ? 0 : Math.min(exit, dueYears + 3)) + 0.25,
+            (x) => predict(fit, x, 0.95, f.uNewPpm),
+          ).map((b) => ({ date: tl.date(b.x), predictedPpm: b.value, halfWidthPpm: b.halfWidth }))
+        : [],
     };
   });
   const exits = frequencies.map((f) => f.projectedExitDate).filter((d): d is string => d !== null);

@@ -2,6 +2,7 @@
 // edit or removal breaks the chain (verification comes with the records-integrity work).
 import { createHash } from 'node:crypto';
 import type { LabDb } from '../store';
+import { cachedStatement } from '../statements';
 
 export interface AuditInput {
   at: string;
@@ -16,13 +17,14 @@ export interface AuditInput {
 export const GENESIS_HASH = '0'.repeat(64);
 
 export function appendAudit(db: LabDb, e: AuditInput): string {
-  const last = db.prepare('SELECT hash FROM audit_entry ORDER BY id DESC LIMIT 1').get() as
+  const last = cachedStatement(db, 'SELECT hash FROM audit_entry ORDER BY id DESC LIMIT 1').get() as
     { hash: string } | undefined;
   const prevHash = last?.hash ?? GENESIS_HASH;
   const beforeJson = e.before === undefined ? null : JSON.stringify(e.before);
   const afterJson = e.after === undefined ? null : JSON.stringify(e.after);
   const hash = auditHash(prevHash, e.at, e.actor, e.action, e.entity, e.entityId, beforeJson, afterJson);
-  db.prepare(
+  cachedStatement(
+    db,
     `INSERT INTO audit_entry (at, actor, action, entity, entity_id, before_json, after_json, prev_hash, hash)
      VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)`,
   ).run(e.at, e.actor, e.action, e.entity, e.entityId, beforeJson, afterJson, prevHash, hash);

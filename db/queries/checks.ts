@@ -3,6 +3,7 @@ import type { CheckRecord, CheckState, CheckSummary } from '../../app/api/contra
 import type { Conditions, DecisionRule, PointResult, Reading, Verdict } from '../../app/engine/model';
 import { decodeJson, encodeJson } from '../../app/api/json';
 import type { LabDb } from '../store';
+import { cachedStatement } from '../statements';
 
 export interface NewCheckRevision {
   meterId: number;
@@ -36,8 +37,10 @@ export interface NewCheckRevision {
 /** Writes a new check (revision 1, unsigned) and returns its id. Call inside a transaction. */
 export function insertCheck(db: LabDb, c: NewCheckRevision, recordedAt: string): number {
   const checkId = Number(
-    db.prepare('INSERT INTO check_event (meter_id, created_at) VALUES (?, ?)').run(c.meterId, recordedAt)
-      .lastInsertRowid,
+    cachedStatement(db, 'INSERT INTO check_event (meter_id, created_at) VALUES (?, ?)').run(
+      c.meterId,
+      recordedAt,
+    ).lastInsertRowid,
   );
   insertRevision(db, checkId, 1, c, recordedAt);
   return checkId;
@@ -54,48 +57,49 @@ export function insertRevision(
 ): number {
   const exceptions = c.traceabilityExceptions?.length ? JSON.stringify(c.traceabilityExceptions) : null;
   const revisionId = Number(
-    db
-      .prepare(
-        `INSERT INTO check_revision (check_id, revision, state, performed_on, performer_id, method, temperature_c,
+    cachedStatement(
+      db,
+      `INSERT INTO check_revision (check_id, revision, state, performed_on, performer_id, method, temperature_c,
            u_temperature_c, pressure_hpa, u_pressure_hpa, humidity_pct, u_humidity_pct, adjusted, remarks,
            decision_rule_json, engine_version, as_found_verdict, as_left_verdict, worst_used_fraction, recorded_at,
            amend_reason, amended_by, traceability_exceptions_json)
          VALUES (?, ?, 'draft', ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
-      )
-      .run(
-        checkId,
-        revision,
-        c.date,
-        c.performerId,
-        c.method,
-        c.conditions.temperatureC,
-        c.conditions.temperatureUncertaintyC,
-        c.conditions.pressureHpa,
-        c.conditions.pressureUncertaintyHpa,
-        c.conditions.humidityPct,
-        c.conditions.humidityUncertaintyPct,
-        c.adjusted ? 1 : 0,
-        c.remarks,
-        JSON.stringify(c.decisionRule),
-        c.engineVersion,
-        c.asFoundVerdict,
-        c.asLeftVerdict,
-        c.worstUsedFraction,
-        recordedAt,
-        c.amendment?.reason ?? null,
-        c.amendment?.by ?? null,
-        exceptions,
-      ).lastInsertRowid,
+    ).run(
+      checkId,
+      revision,
+      c.date,
+      c.performerId,
+      c.method,
+      c.conditions.temperatureC,
+      c.conditions.temperatureUncertaintyC,
+      c.conditions.pressureHpa,
+      c.conditions.pressureUncertaintyHpa,
+      c.conditions.humidityPct,
+      c.conditions.humidityUncertaintyPct,
+      c.adjusted ? 1 : 0,
+      c.remarks,
+      JSON.stringify(c.decisionRule),
+      c.engineVersion,
+      c.asFoundVerdict,
+      c.asLeftVerdict,
+      c.worstUsedFraction,
+      recordedAt,
+      c.amendment?.reason ?? null,
+      c.amendment?.by ?? null,
+      exceptions,
+    ).lastInsertRowid,
   );
-  const std = db.prepare(
+  const std = cachedStatement(
+    db,
     'INSERT INTO check_revision_standard (revision_id, standard_id, certificate_id) VALUES (?, ?, ?)',
   );
   for (const s of c.standards) std.run(revisionId, s.standardId, s.certificateRowId);
-  const pt = db.prepare(
+  const pt = cachedStatement(
+    db,
     `INSERT INTO check_point (revision_id, seq, phase, reference_hz, standard_id, dip_depth_db, error_hz, error_ppm,
        expanded_hz, coverage_k, tolerance_hz, verdict, result_json) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
   );
-  const rd = db.prepare('INSERT INTO reading (point_id, seq, value, direction) VALUES (?, ?, ?, ?)');
+  const rd = cachedStatement(db, 'INSERT INTO reading (point_id, seq, value, direction) VALUES (?, ?, ?, ?)');
   c.points.forEach((p, i) => {
     const pointId = Number(
       pt.run(
@@ -263,11 +267,10 @@ export function allCheckIds(db: LabDb): number[] {
 }
 
 export function findCheckId(db: LabDb, meterId: number, date: string): number | undefined {
-  const r = db
-    .prepare(
-      `SELECT ce.id FROM check_event ce JOIN check_revision cr ON cr.check_id = ce.id
+  const r = cachedStatement(
+    db,
+    `SELECT ce.id FROM check_event ce JOIN check_revision cr ON cr.check_id = ce.id
        WHERE ce.meter_id = ? AND cr.performed_on = ? LIMIT 1`,
-    )
-    .get(meterId, date) as { id: number } | undefined;
+  ).get(meterId, date) as { id: number } | undefined;
   return r?.id;
 }

@@ -2,6 +2,7 @@
 import type { LabSettings } from '../../app/api/contract';
 import type { DecisionRule } from '../../app/engine/model';
 import type { LabDb } from '../store';
+import { cachedStatement } from '../statements';
 
 interface LabRow {
   name: string;
@@ -56,7 +57,7 @@ function labToRow(s: LabSettings): LabRow {
 }
 
 export function getLab(db: LabDb): LabSettings | undefined {
-  const row = db.prepare('SELECT * FROM lab WHERE id = 1').get() as LabRow | undefined;
+  const row = cachedStatement(db, 'SELECT * FROM lab WHERE id = 1').get() as LabRow | undefined;
   return row && rowToLab(row);
 }
 

@@ -2,6 +2,7 @@
 import type { Meter } from '../../app/api/contract';
 import type { Verdict } from '../../app/engine/model';
 import type { LabDb } from '../store';
+import { cachedStatement } from '../statements';
 
 interface MeterRow {
   id: number;
@@ -35,12 +36,14 @@ export interface MeterRecord {
 }
 
 function rowToMeter(db: LabDb, r: MeterRow): Meter {
-  const chart = db
-    .prepare('SELECT divisions, frequency_hz FROM meter_chart_point WHERE meter_id = ? ORDER BY divisions')
-    .all(r.id) as { divisions: number; frequency_hz: number }[];
-  const plan = db
-    .prepare('SELECT frequency_hz FROM meter_plan_point WHERE meter_id = ? ORDER BY frequency_hz')
-    .all(r.id) as { frequency_hz: number }[];
+  const chart = cachedStatement(
+    db,
+    'SELECT divisions, frequency_hz FROM meter_chart_point WHERE meter_id = ? ORDER BY divisions',
+  ).all(r.id) as { divisions: number; frequency_hz: number }[];
+  const plan = cachedStatement(
+    db,
+    'SELECT frequency_hz FROM meter_plan_point WHERE meter_id = ? ORDER BY frequency_hz',
+  ).all(r.id) as { frequency_hz: number }[];
   return {
     assetId: r.asset_id,
     description: r.description,
@@ -72,7 +75,8 @@ function rowToMeter(db: LabDb, r: MeterRow): Meter {
 }
 
 export function getMeterByAsset(db: LabDb, assetId: string): MeterRecord | undefined {
-  const row = db.prepare('SELECT * FROM meter WHERE asset_id = ?').get(assetId) as MeterRow | undefined;
+  const row = cachedStatement(db, 'SELECT * FROM meter WHERE asset_id = ?').get(assetId) as
+    MeterRow | undefined;
   return row && { id: row.id, meter: rowToMeter(db, row) };
 }
 

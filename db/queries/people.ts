@@ -1,6 +1,7 @@
 // People who perform, review and administer checks.
 import type { Person } from '../../app/api/contract';
 import type { LabDb } from '../store';
+import { cachedStatement } from '../statements';
 
 interface PersonRow {
   id: number;
@@ -17,8 +18,9 @@ export function listPeople(db: LabDb): Person[] {
 }
 
 export function findPersonByName(db: LabDb, name: string): Person | undefined {
-  const row = db.prepare('SELECT id, name, role FROM person WHERE name = ? COLLATE NOCASE').get(name) as
-    PersonRow | undefined;
+  const row = cachedStatement(db, 'SELECT id, name, role FROM person WHERE name = ? COLLATE NOCASE').get(
+    name,
+  ) as PersonRow | undefined;
   return row && rowToPerson(row);
 }
 

@@ -1,6 +1,7 @@
 // Lab standards (traceable sources and counters) and their certificate history.
 import type { StandardCertificate } from '../../app/api/contract';
 import type { LabDb } from '../store';
+import { cachedStatement } from '../statements';
 
 export interface StandardRecord {
   id: number;
@@ -39,11 +40,10 @@ const rowToCertificate = (r: CertificateRow): StandardCertificate & { id: number
 
 function certificatesOf(db: LabDb, standardId: number): (StandardCertificate & { id: number })[] {
   return (
-    db
-      .prepare(
-        'SELECT * FROM standard_certificate WHERE standard_id = ? ORDER BY calibrated_on DESC, id DESC',
-      )
-      .all(standardId) as CertificateRow[]
+    cachedStatement(
+      db,
+      'SELECT * FROM standard_certificate WHERE standard_id = ? ORDER BY calibrated_on DESC, id DESC',
+    ).all(standardId) as CertificateRow[]
   ).map(rowToCertificate);
 }
 
@@ -60,8 +60,9 @@ export function listStandards(db: LabDb): StandardRecord[] {
 }
 
 export function getStandardByAsset(db: LabDb, assetId: string): StandardRecord | undefined {
-  const r = db.prepare('SELECT id, asset_id, description FROM standard WHERE asset_id = ?').get(assetId) as
-    StandardRow | undefined;
+  const r = cachedStatement(db, 'SELECT id, asset_id, description FROM standard WHERE asset_id = ?').get(
+    assetId,
+  ) as StandardRow | undefined;
   return (
     r && { id: r.id, assetId: r.asset_id, description: r.description, certificates: certificatesOf(db, r.id) }
   );

@@ -2,6 +2,7 @@
 // a later view is one more route in routes.ts and one more case below.
 import { useEffect, useState } from 'react';
 import type { LabApi } from '../../app/api/contract';
+import { DocumentsPage } from './DocumentsPage';
 import { FitForUsePage } from './FitForUsePage';
 import { MeterPage } from './MeterPage';
 import { RecordCheckPage } from './RecordCheckPage';
@@ -16,6 +17,7 @@ const TABS = [
   { key: 'record', label: 'Record a check', to: href.record() },
   { key: 'use', label: 'Fit for use', to: href.use() },
   { key: 'standards', label: 'Lab standards', to: href.standards() },
+  { key: 'documents', label: 'Documents', to: href.documents() },
   { key: 'settings', label: 'Settings', to: href.settings() },
 ] as const;
 
@@ -69,6 +71,8 @@ function View({ api, route }: { api: LabApi; route: Route }) {
       return <FitForUsePage api={api} />;
     case 'standards':
       return <StandardsPage api={api} />;
+    case 'documents':
+      return <DocumentsPage api={api} />;
     case 'settings':
       return <SettingsPage api={api} />;
     case 'missing':

@@ -1,10 +1,13 @@
 // One meter: identity, band, stated accuracy, state and due date, its maximum input power in
-// plain sight, the error-against-frequency chart of its newest checks, its checks, and the
+// plain sight, the error-against-frequency chart of its newest checks, its drift, health and
+// suggested interval, its checks with revisions and signatures, its audit history, and the
 // state changes (quarantine, withdraw, return to service), each with a reason.
 import { useEffect, useState } from 'react';
 import type { CheckRecord, LabApi, Meter, MeterDetail } from '../../app/api/contract';
 import type { MeterState } from '../../app/engine/model';
 import { ErrorChart } from './ErrorChart';
+import { AuditHistory, CheckRevisions } from './MeterRecords';
+import { TrendSection } from './TrendSection';
 import {
   STATE_LABEL,
   VERDICT_LABEL,
@@ -156,9 +159,21 @@ export function MeterPage({ api, assetId }: { api: LabApi; assetId: string }) {
         <ErrorChart meter={m} checks={recent} />
       </section>
 
+      <TrendSection api={api} assetId={m.assetId} />
+
       <section aria-labelledby="checks-title">
         <h2 id="checks-title">Checks</h2>
         <ChecksTable api={api} detail={detail} />
+      </section>
+
+      <section aria-labelledby="revisions-title">
+        <h2 id="revisions-title">Revisions and signatures</h2>
+        <CheckRevisions api={api} detail={detail} />
+      </section>
+
+      <section aria-labelledby="audit-title">
+        <h2 id="audit-title">Audit history</h2>
+        <AuditHistory api={api} detail={detail} />
       </section>
 
       <section aria-labelledby="state-title">

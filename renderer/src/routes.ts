@@ -8,6 +8,7 @@ export type Route =
   | { view: 'use' }
   | { view: 'standards' }
   | { view: 'settings' }
+  | { view: 'documents' }
   | { view: 'missing'; hash: string };
 
 export function parseRoute(hash: string): Route {
@@ -38,6 +39,8 @@ export function parseRoute(hash: string): Route {
       return { view: 'standards' };
     case 'settings':
       return { view: 'settings' };
+    case 'documents':
+      return { view: 'documents' };
     default:
       return { view: 'missing', hash };
   }
@@ -51,10 +54,13 @@ export const href = {
   use: () => '#/use',
   standards: () => '#/standards',
   settings: () => '#/settings',
+  documents: () => '#/documents',
 };
 
 /** The tab a route belongs to, for the navigation bar. */
-export function section(route: Route): 'register' | 'record' | 'use' | 'standards' | 'settings' | null {
+export function section(
+  route: Route,
+): 'register' | 'record' | 'use' | 'standards' | 'documents' | 'settings' | null {
   switch (route.view) {
     case 'register':
     case 'meter':
@@ -65,6 +71,8 @@ export function section(route: Route): 'register' | 'record' | 'use' | 'standard
       return 'use';
     case 'standards':
       return 'standards';
+    case 'documents':
+      return 'documents';
     case 'settings':
       return 'settings';
     default:

@@ -28,6 +28,17 @@ const PAGE_TARGET_MS = 20;
 
 const log = (text: string) => process.stderr.write(`fleet: ${text}\n`);
 
+/** Memory after a phase, so a peak can be traced to the phase that made it. */
+function logMemory(phase: string): void {
+  (globalThis as { gc?: () => void }).gc?.();
+  const m = process.memoryUsage();
+  const mb = (n: number) => (n / 1048576).toFixed(0);
+  log(
+    `memory after ${phase}: rss ${mb(m.rss)} MB (peak ${mb(process.resourceUsage().maxRSS * 1024)}), ` +
+      `heap ${mb(m.heapUsed)}/${mb(m.heapTotal)} MB, external ${mb(m.external)} MB`,
+  );
+}
+
 function percentile(values: number[], p: number): number {
   const s = [...values].sort((a, b) => a - b);
   return s[Math.min(s.length - 1, Math.ceil(p * s.length) - 1)] as number;
@@ -116,10 +127,12 @@ function bareScanMs(db: Database.Database): number {
 export async function figures(): Promise<BenchFigure[]> {
   const dir = mkdtempSync(path.join(tmpdir(), 'dipledger-bench-fleet-'));
   const file = path.join(dir, 'fleet.dipledger');
+  logMemory('the other benchmarks');
   const lab = openApi(file, { create: true, clock });
   try {
     const made = await timedAsync(() => createFleet(lab.api, METERS));
     log(`${METERS} meters, 3 standards, 5 people through the API in ${(made.ms / 1000).toFixed(1)} s`);
+    logMemory('creating the fleet');
 
     let importMs = 0;
     let checks = 0;
@@ -136,6 +149,7 @@ export async function figures(): Promise<BenchFigure[]> {
         );
     }
     const importRate = checks / (importMs / 1000);
+    logMemory('the import');
 
     const raw = new Database(file, { readonly: true });
     const bareMs = bareInsertMs(raw, dir);
@@ -143,6 +157,7 @@ export async function figures(): Promise<BenchFigure[]> {
       `bare insert of the same rows: ${(bareMs / 1000).toFixed(1)} s (${(checks / (bareMs / 1000)).toFixed(0)} checks/s)`,
     );
 
+    logMemory('the bare insert');
     const scanMs = bareScanMs(raw);
     raw.close();
     const due = { withinDays: 3650 };
@@ -166,6 +181,7 @@ export async function figures(): Promise<BenchFigure[]> {
       await lab.api.getMeter(ids[0] as string);
       return lab.api.getTrend(ids[0] as string);
     });
+    logMemory('the register');
     log(`first meter page after import ${first.ms.toFixed(0)} ms`);
     for (const id of ids) {
       const page = await timedAsync(async () => {
@@ -176,6 +192,7 @@ export async function figures(): Promise<BenchFigure[]> {
       const f = page.value.frequencies[Math.floor(page.value.frequencies.length / 2)]?.frequencyHz;
       useMs.push((await timedAsync(() => lab.api.fitForUse({ assetId: id, frequency: `${f} Hz` }))).ms);
     }
+    logMemory('the meter pages');
     const peakMb = process.resourceUsage().maxRSS / 1024;
     log(
       `page p50 ${percentile(pageMs, 0.5).toFixed(1)} ms, p95 ${percentile(pageMs, 0.95).toFixed(1)} ms; ` +

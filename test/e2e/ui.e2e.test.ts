@@ -197,6 +197,24 @@ describe.skipIf(!haveChromium)(
       await meter.chart.screenshot({ path: path.join(outputDir, 'ui-meter-chart.png') });
     });
 
+    it('shows the trend of a drifting meter, interval advice, dip depth, records and audit', async () => {
+      const meter = new MeterPage(page);
+      await meter.open(server.url, 'WG-202');
+      await meter.waitForHistoryCharts();
+      const trend = await meter.trendChart.innerText();
+      expect(trend).toContain('check date / year');
+      expect(trend).toContain('error / ppm');
+      expect(trend).toContain('⚠ exit');
+      expect(trend).toMatch(/Projected to leave the tolerance on 20\d\d-\d\d-\d\d/);
+      expect(await page.getByTestId('interval-advice').innerText()).toMatch(/Suggested interval: \d+ months/);
+      expect(await page.getByTestId('flags').innerText()).toMatch(/(Stop|Warning)/);
+      expect(await meter.healthChart.innerText()).toContain('dip depth / dB');
+      await page.getByTestId('revisions').waitFor();
+      await page.getByTestId('audit').waitFor();
+      expect(await page.getByTestId('audit').innerText()).toContain('meter WG-202');
+      await shot('ui-meter-trend');
+    });
+
     it('answers a fit-for-use question at a frequency', async () => {
       await shell.go('Fit for use');
       await page.getByLabel('Frequency, with its unit').fill('9.375 GHz');

@@ -1,7 +1,8 @@
 // Page object for the window's navigation bar: moving between views as a user does.
 import type { Locator, Page } from 'playwright-core';
 
-export type ViewName = 'Register' | 'Record a check' | 'Fit for use' | 'Lab standards' | 'Settings';
+export type ViewName =
+  'Register' | 'Record a check' | 'Fit for use' | 'Lab standards' | 'Documents' | 'Settings';
 
 export class AppShell {
   readonly nav: Locator;

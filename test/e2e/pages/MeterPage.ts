@@ -7,6 +7,8 @@ export class MeterPage {
   readonly state: Locator;
   readonly due: Locator;
   readonly chart: Locator;
+  readonly trendChart: Locator;
+  readonly healthChart: Locator;
   readonly checkRows: Locator;
   readonly recordButton: Locator;
 
@@ -15,7 +17,9 @@ export class MeterPage {
     this.powerLimit = page.getByRole('complementary', { name: 'Maximum input power' });
     this.state = page.getByTestId('meter-state');
     this.due = page.getByTestId('meter-due');
-    this.chart = page.locator('figure.chart');
+    this.chart = page.locator('figure.chart[aria-label="Error against frequency"]');
+    this.trendChart = page.locator('figure.chart[aria-label="Error against time"]');
+    this.healthChart = page.locator('figure.chart[aria-label="Dip depth and loaded Q against time"]');
     this.checkRows = page.locator('table.checks tbody tr[data-check-id]');
     this.recordButton = page.getByRole('link', { name: /^Record a check of / });
   }
@@ -53,6 +57,12 @@ export class MeterPage {
       last = now;
     }
     return last;
+  }
+
+  /** Waits for the drift and health charts to be drawn. */
+  async waitForHistoryCharts(): Promise<void> {
+    await this.trendChart.locator('.recharts-wrapper > svg.recharts-surface').waitFor();
+    await this.healthChart.locator('.recharts-wrapper > svg.recharts-surface').waitFor();
   }
 
   async checkDates(): Promise<string[]> {
