@@ -28,7 +28,8 @@ const PAGE_TARGET_MS = 20;
 
 const log = (text: string) => process.stderr.write(`fleet: ${text}\n`);
 
-/** Memory after a phase, so a peak can be traced to the phase that made it. */
+/** Memory after a phase, so a peak can be traced to the phase that made it. Run with
+ * NODE_OPTIONS=--expose-gc to collect first and see the live heap rather than garbage. */
 function logMemory(phase: string): void {
   (globalThis as { gc?: () => void }).gc?.();
   const m = process.memoryUsage();
