@@ -94,6 +94,14 @@ export function readDelimitedTrace(
     level ??= hint.level;
     voltScale = hint.voltScale;
   }
+  if (level === undefined && split((rows[start] ?? first).text).length >= 3) {
+    // Three or more numbers a row with nothing saying what they are: Re/Im and dB/angle are both
+    // common, and a wrong guess gives a wrong resonance, so ask rather than guess.
+    return failAt(
+      (rows[start] ?? first).line,
+      'more than two columns and no header saying what they hold: choose the level (ri for real and imaginary parts, db, linear or volts for the second column)',
+    );
+  }
   level ??= 'db';
   const columns = level === 'ri' ? 3 : 2;
   const sign = options.detectorSign ?? 1;

@@ -195,3 +195,18 @@ describe('readSweepFile', () => {
     expect(csv.ok && csv.value.trace.kind).toBe('scalar');
   });
 });
+
+describe('readDelimitedTrace with more than two unnamed columns', () => {
+  it('asks what the columns hold instead of guessing (Re/Im and dB/angle look alike)', () => {
+    const text = '6.0721 0.95 -0.10\n6.0722 0.90 -0.20\n6.0723 0.95 -0.10\n';
+    const r = readDelimitedTrace(text);
+    expect(r.ok).toBe(false);
+    if (!r.ok) {
+      expect(r.line).toBe(1);
+      expect(r.message).toMatch(/no header saying what they hold/);
+    }
+    const ri = readDelimitedTrace(text, { level: 'ri', frequencyUnit: 'GHz' });
+    expect(ri.ok).toBe(true);
+    if (ri.ok) expect(ri.value.re).toEqual([0.95, 0.9, 0.95]);
+  });
+});
