@@ -970,14 +970,8 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
     ...historyOps(ctx),
     ...sweepOps(ctx),
     ...documentsOps(ctx),
-    ...groupPlaceholder(ctx),
   };
   return asyncApi(api);
-}
-
-/** Stands in the list until the first operation group joins; removed when it does. */
-function groupPlaceholder(_ctx: ServiceContext): Record<never, never> {
-  return {};
 }
 
 /** The service is written synchronously (better-sqlite3 is synchronous); callers get the

@@ -3,7 +3,7 @@
 import { describe, expect, it } from 'vitest';
 import { LabError } from '../../app/api/errors';
 import type { LabApi } from '../../app/api/contract';
-import { goodCheck, seededLab, TODAY } from '../fixtures/lab';
+import { goodCheck, seededLab } from '../fixtures/lab';
 
 async function refusal(p: Promise<unknown>): Promise<LabError> {
   try {
@@ -353,11 +353,5 @@ describe('history in and out as CSV', () => {
     const b = await seededLab();
     const e = await refusal(b.api.importCsv('meter,date\nTW-01,2026-01-01\n'));
     expect(e.message).toMatch(/missing column\(s\) performer/);
-  });
-});
-
-describe('the clock', () => {
-  it('is the fixed one in tests', () => {
-    expect(TODAY).toBe('2026-12-01');
   });
 });
