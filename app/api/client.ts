@@ -30,8 +30,9 @@ type FetchFn = (
   text(): Promise<string>;
 }>;
 
-/** A client over the loopback server: POST {args} to `${baseUrl}/api/<op>`. '' means same origin. */
-export function httpClient(baseUrl: string, fetchFn: FetchFn = fetch): LabApi {
+/** A client over the loopback server: POST {args} to `${baseUrl}/api/<op>`. '' means same origin
+ * (the page's cookie carries the server's token); other clients pass the token. */
+export function httpClient(baseUrl: string, fetchFn: FetchFn = fetch, token?: string): LabApi {
   const base = baseUrl.replace(/\/+$/, '');
   return makeClient(async (op, args) => {
     let text: string;
@@ -39,7 +40,11 @@ export function httpClient(baseUrl: string, fetchFn: FetchFn = fetch): LabApi {
     try {
       const res = await fetchFn(`${base}/api/${op}`, {
         method: 'POST',
-        headers: { 'content-type': 'application/json', accept: 'application/json' },
+        headers: {
+          'content-type': 'application/json',
+          accept: 'application/json',
+          ...(token === undefined ? {} : { 'x-dipledger-token': token }),
+        },
         body: encodeWire({ args }),
       });
       status = res.status;

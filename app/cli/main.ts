@@ -245,7 +245,7 @@ export async function runCli(argv: string[], io: CliIo): Promise<number> {
           '../../renderer/dist',
         );
         const server = await startServer({ api: lab.api, port, staticDir });
-        io.out(`Dipledger: ${server.url}  (Ctrl+C to stop)`);
+        io.out(`Dipledger: ${server.launchUrl}  (Ctrl+C to stop)`);
         opened = undefined; // keep the lab open while serving
         await new Promise<void>((resolve) => process.once('SIGINT', () => resolve()));
         await server.close();

@@ -47,7 +47,7 @@ function runElectron(binary: string, file: string): Promise<number> {
 async function browserMode(file: string, why: string): Promise<void> {
   const lab = openApi(file);
   const server = await listen(lab.api, preferredPort(process.env));
-  console.log(`Dipledger (browser mode): ${server.url}`);
+  console.log(`Dipledger (browser mode): ${server.launchUrl}`);
   console.log(why);
 
   let closing = false;

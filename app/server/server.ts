@@ -1,5 +1,10 @@
 // Loopback HTTP bridge to a LabApi for browser mode and end-to-end tests: POST /api/<op>
 // runs one operation, GET serves the built renderer. Transport only, no domain logic.
+// Every request but /api/health needs the random per-launch token: any other program or web page
+// on this machine can reach 127.0.0.1, and the lab's records are not theirs to read or write.
+// The browser brings it once in the printed address (?token=...), gets it back as an HttpOnly,
+// SameSite=Strict cookie and is sent to the address without it; other clients send a header.
+import { randomBytes, timingSafeEqual } from 'node:crypto';
 import { createServer } from 'node:http';
 import type { IncomingMessage, ServerResponse } from 'node:http';
 import type { AddressInfo } from 'node:net';
@@ -21,10 +26,17 @@ export interface ServerOptions {
   staticDir?: string;
   /** Largest request body accepted, bytes (default 20 MB: a big CSV history import). */
   maxBodyBytes?: number;
+  /** The per-launch secret; a random 256-bit one when left out (tests may fix it). */
+  token?: string;
 }
 
 export interface RunningServer {
+  /** The base address, e.g. http://127.0.0.1:5317/ (refuses everything but /api/health alone). */
   url: string;
+  /** The address to open in a browser: the base address with the token. */
+  launchUrl: string;
+  /** Send as the `x-dipledger-token` header (programs) or bring once as ?token= (browsers). */
+  token: string;
   /** The address actually bound, e.g. '127.0.0.1'. */
   host: string;
   port: number;
@@ -75,7 +87,12 @@ export async function startServer(options: ServerOptions): Promise<RunningServer
   if (!LOOPBACK.has(host))
     throw new LabError('refused', `the lab server listens on loopback only, not on ${host}`);
   const root = staticDir ? path.resolve(staticDir) : undefined;
+  const token = options.token ?? randomBytes(32).toString('base64url');
+  if (token.length < 16 || !/^[A-Za-z0-9_-]+$/.test(token))
+    throw new LabError('invalid-input', 'the server token must be at least 16 URL-safe characters');
   let boundPort = port;
+  /** Per port, so two labs served side by side keep their own cookie (cookies ignore ports). */
+  const cookieName = () => `dipledger_${boundPort}`;
 
   const server = createServer((req, res) => {
     handle(req, res).catch((e: unknown) => {
@@ -98,6 +115,38 @@ export async function startServer(options: ServerOptions): Promise<RunningServer
       sendJson(res, 200, { ok: true, value: { status: 'ok', service: 'dipledger' } });
       return;
     }
+    // Cross-site requests: a page from elsewhere that a browser would let through anyway.
+    if (!originAllowed(req, boundPort)) {
+      if (url.pathname.startsWith('/api/'))
+        sendEnvelope(res, 403, refusal('refused', 'requests from other sites are refused'));
+      else sendText(res, 403, 'requests from other sites are refused');
+      return;
+    }
+    const offered = url.searchParams.get('token');
+    if (
+      offered !== null &&
+      (req.method === 'GET' || req.method === 'HEAD') &&
+      !url.pathname.startsWith('/api/')
+    ) {
+      if (!sameSecret(offered, token)) {
+        sendText(res, 401, NEEDS_TOKEN);
+        return;
+      }
+      // The token leaves the address bar and history; the cookie carries it from now on.
+      url.searchParams.delete('token');
+      res.writeHead(303, {
+        location: url.pathname + (url.search === '?' ? '' : url.search),
+        'set-cookie': `${cookieName()}=${token}; HttpOnly; SameSite=Strict; Path=/`,
+        'cache-control': 'no-store',
+      });
+      res.end();
+      return;
+    }
+    if (!authorised(req)) {
+      if (url.pathname.startsWith('/api/')) sendEnvelope(res, 401, refusal('refused', NEEDS_TOKEN));
+      else sendText(res, 401, NEEDS_TOKEN);
+      return;
+    }
     if (url.pathname.startsWith('/api/')) {
       if (req.method !== 'POST') return methodNotAllowed(res, 'POST');
       await handleApi(req, res, url.pathname.slice('/api/'.length));
@@ -105,6 +154,13 @@ export async function startServer(options: ServerOptions): Promise<RunningServer
     }
     if (req.method !== 'GET' && req.method !== 'HEAD') return methodNotAllowed(res, 'GET, HEAD');
     await serveStatic(req, res, url.pathname);
+  }
+
+  function authorised(req: IncomingMessage): boolean {
+    const header = req.headers['x-dipledger-token'];
+    if (typeof header === 'string') return sameSecret(header, token);
+    const cookie = cookieValue(req.headers.cookie, cookieName());
+    return cookie !== undefined && sameSecret(cookie, token);
   }
 
   async function handleApi(req: IncomingMessage, res: ServerResponse, op: string): Promise<void> {
@@ -178,8 +234,11 @@ export async function startServer(options: ServerOptions): Promise<RunningServer
   boundPort = address.port;
   const shownHost = host === '::1' ? '[::1]' : host;
 
+  const base = `http://${shownHost}:${boundPort}/`;
   return {
-    url: `http://${shownHost}:${boundPort}/`,
+    url: base,
+    launchUrl: `${base}?token=${token}`,
+    token,
     host: address.address,
     port: boundPort,
     close: () =>
@@ -188,6 +247,35 @@ export async function startServer(options: ServerOptions): Promise<RunningServer
         server.closeAllConnections();
       }),
   };
+}
+
+const NEEDS_TOKEN =
+  'This lab server needs its per-launch token: open the address Dipledger printed when it started (the one with ?token=).';
+
+/** Constant-time comparison, so the token cannot be guessed a character at a time. */
+function sameSecret(offered: string, token: string): boolean {
+  const a = Buffer.from(offered);
+  const b = Buffer.from(token);
+  return a.length === b.length && timingSafeEqual(a, b);
+}
+
+function cookieValue(header: string | undefined, name: string): string | undefined {
+  for (const part of (header ?? '').split(';')) {
+    const eq = part.indexOf('=');
+    if (eq > 0 && part.slice(0, eq).trim() === name) return part.slice(eq + 1).trim();
+  }
+  return undefined;
+}
+
+/** A request a browser marks as coming from another site, or whose Origin is not this server. */
+function originAllowed(req: IncomingMessage, port: number): boolean {
+  const site = req.headers['sec-fetch-site'];
+  if (site === 'cross-site' || site === 'same-site') return false;
+  const origin = req.headers.origin;
+  if (origin === undefined) return true;
+  return [`http://127.0.0.1:${port}`, `http://localhost:${port}`, `http://[::1]:${port}`].includes(
+    origin.toLowerCase(),
+  );
 }
 
 function hostAllowed(hostHeader: string | undefined, port: number): boolean {

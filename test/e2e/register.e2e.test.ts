@@ -60,7 +60,7 @@ describe.skipIf(!haveChromium)(
       page.on('pageerror', (e) => problems.push(e.message));
       page.on('response', (r) => r.status() >= 400 && problems.push(`HTTP ${r.status()} ${r.url()}`));
       register = new RegisterPage(page);
-      await register.open(server.url);
+      await register.open(server.launchUrl);
     }, 120_000);
 
     afterAll(async () => {

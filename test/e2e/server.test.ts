@@ -22,10 +22,13 @@ function raw(
   port: number,
   method: string,
   rawPath: string,
-  opts: { body?: string | Buffer; headers?: Record<string, string> } = {},
+  opts: { body?: string | Buffer; headers?: Record<string, string>; token?: string | null } = {},
 ): Promise<Answer> {
+  // The server's token by default; null sends none.
+  const token = opts.token === undefined ? TOKEN : opts.token;
+  const headers = { ...(token === null ? {} : { 'x-dipledger-token': token }), ...opts.headers };
   return new Promise((resolve, reject) => {
-    const req = request({ host: '127.0.0.1', port, method, path: rawPath, headers: opts.headers }, (res) => {
+    const req = request({ host: '127.0.0.1', port, method, path: rawPath, headers }, (res) => {
       const chunks: Buffer[] = [];
       res.on('data', (c: Buffer) => chunks.push(c));
       res.on('end', () =>
@@ -51,6 +54,7 @@ let dir: string;
 let staticDir: string;
 let server: RunningServer;
 const SECRET = 'top-secret-outside-the-static-folder';
+const TOKEN = 'fixed-test-token-0123456789abcdef';
 
 beforeAll(async () => {
   dir = await mkdtemp(path.join(os.tmpdir(), 'dipledger-server-'));
@@ -61,7 +65,7 @@ beforeAll(async () => {
   await writeFile(path.join(staticDir, 'assets', 'app-1234.css'), 'body{}');
   await writeFile(path.join(dir, 'secret.txt'), SECRET);
   await symlink(path.join(dir, 'secret.txt'), path.join(staticDir, 'leak.txt'));
-  server = await startServer({ api: fakeLabApi(), staticDir, maxBodyBytes: 64 * 1024 });
+  server = await startServer({ api: fakeLabApi(), staticDir, maxBodyBytes: 64 * 1024, token: TOKEN });
 });
 
 afterAll(async () => {
@@ -108,6 +112,88 @@ describe('binding', () => {
   });
 });
 
+describe('the per-launch token', () => {
+  it('makes a random 256-bit one when none is given, and prints it in the launch address', async () => {
+    const other = await startServer({ api: fakeLabApi() });
+    try {
+      expect(other.token).toMatch(/^[A-Za-z0-9_-]{43}$/);
+      expect(other.launchUrl).toBe(`${other.url}?token=${other.token}`);
+      expect(other.token).not.toBe(TOKEN);
+    } finally {
+      await other.close();
+    }
+  });
+
+  it('refuses operations with a wrong or missing token, and says what to open', async () => {
+    for (const token of [null, 'wrong-token-0123456789abcdef-xyz', `${TOKEN}x`]) {
+      const res = await raw(server.port, 'POST', '/api/listMeters', {
+        body: JSON.stringify({ args: [] }),
+        headers: { 'content-type': 'application/json' },
+        token,
+      });
+      expect(res.status, String(token)).toBe(401);
+      expect(JSON.parse(res.body)).toMatchObject({ ok: false, error: { code: 'refused' } });
+      expect(res.body).not.toContain('WM-');
+    }
+    const client = httpClient(server.url, fetch, 'wrong-token-0123456789abcdef-xyz');
+    await expect(client.listMeters()).rejects.toThrow(/per-launch token/);
+  });
+
+  it('refuses the page itself without the token, and a wrong token in the address', async () => {
+    const bare = await raw(server.port, 'GET', '/', { token: null });
+    expect(bare.status).toBe(401);
+    expect(bare.body).not.toContain('register page');
+    const wrong = await raw(server.port, 'GET', '/?token=not-the-token-at-all-0123456', { token: null });
+    expect(wrong.status).toBe(401);
+    expect(wrong.headers['set-cookie']).toBeUndefined();
+  });
+
+  it('trades the token in the address for a strict cookie and sends the browser on without it', async () => {
+    const first = await raw(server.port, 'GET', `/?token=${TOKEN}`, { token: null });
+    expect(first.status).toBe(303);
+    expect(first.headers.location).toBe('/');
+    const cookie = String(first.headers['set-cookie']);
+    expect(cookie).toContain(`dipledger_${server.port}=${TOKEN}`);
+    expect(cookie).toContain('HttpOnly');
+    expect(cookie).toContain('SameSite=Strict');
+    const page = await raw(server.port, 'GET', '/', {
+      token: null,
+      headers: { cookie: `other=1; dipledger_${server.port}=${TOKEN}` },
+    });
+    expect(page.status).toBe(200);
+    expect(page.body).toContain('register page');
+    const api = await raw(server.port, 'POST', '/api/listMeters', {
+      body: JSON.stringify({ args: [] }),
+      headers: { 'content-type': 'application/json', cookie: `dipledger_${server.port}=${TOKEN}` },
+      token: null,
+    });
+    expect(api.status).toBe(200);
+  });
+
+  it('refuses requests from other sites even with the token', async () => {
+    for (const headers of [
+      { origin: 'http://evil.example' },
+      { origin: `http://127.0.0.1:${server.port + 1}` },
+      { 'sec-fetch-site': 'cross-site' },
+    ]) {
+      const res = await raw(server.port, 'POST', '/api/listMeters', {
+        body: JSON.stringify({ args: [] }),
+        headers: { 'content-type': 'application/json', ...headers },
+      });
+      expect(res.status, JSON.stringify(headers)).toBe(403);
+    }
+    const own = await raw(server.port, 'POST', '/api/listMeters', {
+      body: JSON.stringify({ args: [] }),
+      headers: { 'content-type': 'application/json', origin: `http://127.0.0.1:${server.port}` },
+    });
+    expect(own.status).toBe(200);
+  });
+
+  it('answers the health probe without a token, and nothing else with it', async () => {
+    expect((await raw(server.port, 'GET', '/api/health', { token: null })).status).toBe(200);
+  });
+});
+
 describe('API', () => {
   it('GET /api/health', async () => {
     const res = await fetch(`${server.url}api/health`);
@@ -123,7 +209,7 @@ describe('API', () => {
   });
 
   it('works through httpClient, errors included', async () => {
-    const client = httpClient(server.url);
+    const client = httpClient(server.url, fetch, server.token);
     expect(await client.listMeters()).toEqual(DEMO_ROWS);
     await expect(client.getMeter('WM-999')).rejects.toMatchObject({ code: 'not-found' });
   });

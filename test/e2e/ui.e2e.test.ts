@@ -115,7 +115,7 @@ describe.skipIf(!haveChromium)(
 
     it('shows the register with the band coverage and its gaps', async () => {
       const register = new RegisterPage(page);
-      await register.open(server.url);
+      await register.open(server.launchUrl);
       expect(await shell.current()).toBe('Register');
       const gaps = await page.getByTestId('coverage-gaps').innerText();
       expect(gaps).toContain('Gap: 8–8.2 GHz.');
