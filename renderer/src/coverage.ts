@@ -1,50 +1,48 @@
-// The lab's band coverage on a logarithmic frequency axis: which stretches of about 1 to
-// 110 GHz an in-service meter covers, which only a quarantined or withdrawn one, and the gaps.
+// The lab's band coverage for the strip of the register, as the service's `coverage` operation
+// answers it (a meter counts only when in service, checked and not overdue), turned into
+// stretches to draw on a logarithmic frequency axis of about 1 to 110 GHz: covered, held only by
+// meters not usable now, or no meter at all.
 import type { RegisterRow } from '../../app/api/contract';
+import type { CoverageReport } from '../../app/api/contract-history';
+import { effectiveDue } from './registerFilters';
 
 export const COVERAGE_MIN_HZ = 1e9;
 export const COVERAGE_MAX_HZ = 110e9;
 
 export type CoverageKind = 'usable' | 'unusable' | 'gap';
 
-export interface CoverageSegment {
+export interface StripSegment {
   fromHz: number;
   toHz: number;
   kind: CoverageKind;
-  /** Asset ids of the meters covering this stretch (in-service ones for 'usable'). */
+  /** Usable meters for 'usable'; the covering meters that are not usable for 'unusable'. */
   meters: string[];
 }
 
-/** Splits [minHz, maxHz] at every band edge and merges neighbours of the same kind. */
-export function coverage(
-  rows: Pick<RegisterRow, 'assetId' | 'minHz' | 'maxHz' | 'state'>[],
-  minHz = COVERAGE_MIN_HZ,
-  maxHz = COVERAGE_MAX_HZ,
-): CoverageSegment[] {
-  const edges = new Set<number>([minHz, maxHz]);
-  for (const r of rows) {
-    for (const e of [r.minHz, r.maxHz]) if (e > minHz && e < maxHz) edges.add(e);
-  }
-  const sorted = [...edges].sort((a, b) => a - b);
-  const out: CoverageSegment[] = [];
-  for (let i = 0; i + 1 < sorted.length; i++) {
-    const a = sorted[i] as number;
-    const b = sorted[i + 1] as number;
-    // The geometric middle: on a log axis it is the middle of what the eye sees.
-    const mid = Math.sqrt(a * b);
-    const over = rows.filter((r) => r.minHz <= mid && mid <= r.maxHz);
-    const inService = over.filter((r) => r.state === 'in-service');
-    const kind: CoverageKind = inService.length ? 'usable' : over.length ? 'unusable' : 'gap';
-    const meters = (kind === 'usable' ? inService : over).map((r) => r.assetId);
+/** The report's segments by kind, neighbours of the same kind merged: the strip shows what a
+ * user can rely on, not every band edge. */
+export function stripSegments(report: CoverageReport): StripSegment[] {
+  const out: StripSegment[] = [];
+  for (const s of report.segments) {
+    const kind: CoverageKind = s.usable.length ? 'usable' : s.meters.length ? 'unusable' : 'gap';
+    const meters = kind === 'usable' ? s.usable : s.meters.filter((m) => !s.usable.includes(m));
     const last = out[out.length - 1];
-    if (last && last.kind === kind) {
-      last.toHz = b;
+    if (last && last.kind === kind && last.toHz === s.fromHz) {
+      last.toHz = s.toHz;
       for (const m of meters) if (!last.meters.includes(m)) last.meters.push(m);
     } else {
-      out.push({ fromHz: a, toHz: b, kind, meters: [...meters] });
+      out.push({ fromHz: s.fromHz, toHz: s.toHz, kind, meters: [...meters] });
     }
   }
   return out;
+}
+
+/** Why a meter does not count towards coverage, in the words the service's note uses. */
+export function notUsableBecause(row: Pick<RegisterRow, 'state' | 'daysToDue'> | undefined): string {
+  if (!row) return '';
+  if (row.state !== 'in-service') return row.state;
+  if (row.daysToDue === null) return 'never checked';
+  return effectiveDue(row) === 'overdue' ? 'overdue' : '';
 }
 
 /** Position of a frequency along a log axis from minHz to maxHz, 0 to 1. */

@@ -172,7 +172,7 @@ describe('the per-launch token', () => {
 
   it('refuses requests from other sites even with the token', async () => {
     for (const headers of [
-      { origin: 'http://evil.example' },
+      { origin: 'http://evil.example' } as Record<string, string>,
       { origin: `http://127.0.0.1:${server.port + 1}` },
       { 'sec-fetch-site': 'cross-site' },
     ]) {
