@@ -102,6 +102,8 @@ export interface CheckRevisionView {
 export interface AuditQuery {
   entity?: string;
   entityId?: string;
+  /** A meter's asset id: its own entries and those of its checks and issued documents. */
+  meter?: string;
   /** Newest first, at most this many (default 100, at most 10000). */
   limit?: number;
 }

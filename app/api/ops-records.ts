@@ -101,6 +101,7 @@ const RevisionQuerySchema = z.object({
 const AuditQuerySchema = z.object({
   entity: z.string('expected an entity such as "check"').max(40).optional(),
   entityId: z.string('expected an entity id as text').max(80).optional(),
+  meter: z.string('expected a meter asset id').trim().min(1, 'expected a meter asset id').max(80).optional(),
   limit: z.int('expected a whole number of entries').min(1).max(10000).default(100),
 });
 

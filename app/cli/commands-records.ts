@@ -136,7 +136,7 @@ export const recordsCommands: CommandGroup = {
                                      DIPLEDGER_PASSPHRASE is read for automation only)
   amend CHECK FILE.json --reason TEXT   a new revision of a check; the old one stays
   check CHECK [--revision N]         a check: revisions, what changed, standards, signatures
-  audit [--entity E] [--id ID] [--limit N]   the audit trail, newest first
+  audit [--meter REF] [--entity E] [--id ID] [--limit N]   the audit trail, newest first (a meter: its checks and documents too)
   quarantine|withdraw|reinstate REF --reason TEXT   change a meter's state (audited)
   integrity                          SQLite check, audit chain, every signature (exit 1 if broken)
   backup FILE                        a consistent copy while the lab is in use
@@ -150,6 +150,7 @@ export const recordsCommands: CommandGroup = {
     revision: { type: 'string' },
     entity: { type: 'string' },
     id: { type: 'string' },
+    meter: { type: 'string' },
     limit: { type: 'string' },
   },
   commands: {
@@ -214,6 +215,7 @@ export const recordsCommands: CommandGroup = {
       const rows = await ctx.open().api.listAudit({
         entity: ctx.values.entity as string | undefined,
         entityId: ctx.values.id as string | undefined,
+        meter: ctx.values.meter as string | undefined,
         ...(limit === undefined ? {} : { limit }),
       });
       ctx.print(rows, () =>

@@ -11,6 +11,7 @@ import type {
 } from '../../app/api/contract-records';
 import type { SealedKey } from '../../app/api/records-signing';
 import type { LabDb } from '../store';
+import { cachedStatement } from '../statements';
 
 interface KeyRow {
   id: number;
@@ -374,12 +375,34 @@ export function listAuditEntries(
   db: LabDb,
   q: Required<Pick<AuditQuery, 'limit'>> & AuditQuery,
 ): AuditEntryView[] {
-  const rows = db
-    .prepare(
-      `SELECT * FROM audit_entry WHERE (? IS NULL OR entity = ?) AND (? IS NULL OR entity_id = ?)
-       ORDER BY id DESC LIMIT ?`,
-    )
-    .all(q.entity ?? null, q.entity ?? null, q.entityId ?? null, q.entityId ?? null, q.limit) as AuditRow[];
+  // With a meter: the meter's own entries, its checks' and its issued documents' (documents are
+  // named "<number> revision <n>" in the trail), in one query rather than one per check.
+  const rows = cachedStatement(
+    db,
+    `SELECT * FROM audit_entry
+     WHERE (? IS NULL OR entity = ?) AND (? IS NULL OR entity_id = ?)
+       AND (? IS NULL
+         OR (entity = 'meter' AND entity_id = ?)
+         OR (entity = 'check' AND entity_id IN (
+              SELECT CAST(ce.id AS TEXT) FROM check_event ce JOIN meter m ON m.id = ce.meter_id
+              WHERE m.asset_id = ?))
+         OR (entity = 'document' AND entity_id IN (
+              SELECT d.number || ' revision ' || d.revision FROM issued_document d
+              JOIN check_revision cr ON cr.id = d.check_revision_id
+              JOIN check_event ce ON ce.id = cr.check_id JOIN meter m ON m.id = ce.meter_id
+              WHERE m.asset_id = ?)))
+     ORDER BY id DESC LIMIT ?`,
+  ).all(
+    q.entity ?? null,
+    q.entity ?? null,
+    q.entityId ?? null,
+    q.entityId ?? null,
+    q.meter ?? null,
+    q.meter ?? null,
+    q.meter ?? null,
+    q.meter ?? null,
+    q.limit,
+  ) as AuditRow[];
   return rows.map((r) => ({
     id: r.id,
     at: r.at,

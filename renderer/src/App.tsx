@@ -2,6 +2,7 @@
 // a later view is one more route in routes.ts and one more case below.
 import { useEffect, useState } from 'react';
 import type { LabApi } from '../../app/api/contract';
+import { CheckPage } from './CheckPage';
 import { DocumentsPage } from './DocumentsPage';
 import { FitForUsePage } from './FitForUsePage';
 import { MeterPage } from './MeterPage';
@@ -58,6 +59,8 @@ function View({ api, route }: { api: LabApi; route: Route }) {
       return <RegisterPage api={api} />;
     case 'meter':
       return <MeterPage key={route.assetId} api={api} assetId={route.assetId} />;
+    case 'check':
+      return <CheckPage key={route.checkId} api={api} checkId={route.checkId} />;
     case 'record':
       return (
         <RecordCheckPage

@@ -4,6 +4,7 @@
 import { useState } from 'react';
 import type { LabApi, MeterDetail } from '../../app/api/contract';
 import type { AuditEntryView, CheckRevisionView, RevisionSummary } from '../../app/api/contract-records';
+import { href } from './routes';
 import { useLoad } from './useLoad';
 
 /** How a revision reads in words and a symbol: never by colour alone. */
@@ -52,7 +53,14 @@ export function CheckRevisions({ api, detail }: { api: LabApi; detail: MeterDeta
                 <th scope="row" className="num-left">
                   {v.record.date}
                 </th>
-                <td className="num">{v.record.checkId}</td>
+                <td className="num">
+                  <a
+                    href={href.check(v.record.checkId)}
+                    title="Open the check to sign it or issue its documents"
+                  >
+                    {v.record.checkId}
+                  </a>
+                </td>
                 <td>
                   <ul className="plain">
                     {v.revisions.map((r) => (
@@ -97,21 +105,9 @@ export function CheckRevisions({ api, detail }: { api: LabApi; detail: MeterDeta
   );
 }
 
-/** Every audit entry about the meter, its checks and its documents, newest first. */
+/** Every audit entry about the meter, its checks and its documents, newest first: one call. */
 export async function meterAudit(api: LabApi, detail: MeterDetail): Promise<AuditEntryView[]> {
-  const id = detail.meter.assetId;
-  const docs = await api.listDocuments({ meter: id }).catch(() => []);
-  const queries = [
-    { entity: 'meter', entityId: id },
-    ...detail.checks.map((c) => ({ entity: 'check', entityId: String(c.checkId) })),
-    ...docs.map((d) => ({ entity: 'document', entityId: `${d.number} revision ${d.revision}` })),
-  ];
-  const lists = await Promise.all(queries.map((q) => api.listAudit({ ...q, limit: 1000 })));
-  const seen = new Set<number>();
-  return lists
-    .flat()
-    .filter((e) => !seen.has(e.id) && seen.add(e.id))
-    .sort((a, b) => b.id - a.id);
+  return api.listAudit({ meter: detail.meter.assetId, limit: 1000 });
 }
 
 const SHOWN = 25;

@@ -245,7 +245,8 @@ function CheckEditor({ api, setup }: { api: LabApi; setup: Setup }) {
       await savingRef.current;
       const id = draftIdRef.current;
       if (id !== undefined) await api.discardDraft(id).catch(() => undefined);
-      window.location.hash = href.meter(rec.meterAssetId);
+      // Signing and issuing follow on the check's own page.
+      window.location.hash = href.check(rec.checkId);
     } catch (e) {
       const issues = (e as { issues?: FieldIssue[] }).issues ?? [];
       setRecordState({ kind: 'failed', message: messageOf(e), issues });

@@ -4,6 +4,7 @@
 export type Route =
   | { view: 'register' }
   | { view: 'meter'; assetId: string }
+  | { view: 'check'; checkId: number }
   | { view: 'record'; assetId?: string; draftId?: number }
   | { view: 'use' }
   | { view: 'standards' }
@@ -30,6 +31,8 @@ export function parseRoute(hash: string): Route {
       return { view: 'register' };
     case 'meter':
       return arg ? { view: 'meter', assetId: arg } : { view: 'register' };
+    case 'check':
+      return arg && /^\d+$/.test(arg) ? { view: 'check', checkId: Number(arg) } : { view: 'missing', hash };
     case 'record':
       if (arg === 'draft' && extra && /^\d+$/.test(extra)) return { view: 'record', draftId: Number(extra) };
       return arg ? { view: 'record', assetId: arg } : { view: 'record' };
@@ -49,6 +52,7 @@ export function parseRoute(hash: string): Route {
 export const href = {
   register: () => '#/register',
   meter: (assetId: string) => `#/meter/${encodeURIComponent(assetId)}`,
+  check: (checkId: number) => `#/check/${checkId}`,
   record: (assetId?: string) => (assetId ? `#/record/${encodeURIComponent(assetId)}` : '#/record'),
   draft: (draftId: number) => `#/record/draft/${draftId}`,
   use: () => '#/use',
@@ -64,6 +68,7 @@ export function section(
   switch (route.view) {
     case 'register':
     case 'meter':
+    case 'check':
       return 'register';
     case 'record':
       return 'record';

@@ -365,6 +365,35 @@ describe('traceability of the standards used', () => {
 });
 
 describe('audit trail', () => {
+  it('lists one meter’s entries with its checks and issued documents, and nothing of other meters', async () => {
+    const lab = await labWithSigners();
+    const mine = await lab.api.recordCheck(goodCheck());
+    await lab.api.signCheck({ checkId: mine.checkId, person: ADA.name, passphrase: ADA.passphrase });
+    const cert = await lab.api.issueCertificate({ checkId: mine.checkId });
+    await lab.api.changeMeterState({ assetId: 'TW-02', state: 'quarantined', reason: 'dropped' });
+    const trail = await lab.api.listAudit({ meter: 'TW-01' });
+    expect(trail.map((e) => `${e.action} ${e.entity} ${e.entityId}`)).toEqual([
+      `issue document ${cert.number} revision 1`,
+      `sign check ${mine.checkId}`,
+      `record check ${mine.checkId}`,
+      'create meter TW-01',
+    ]);
+    // The same entries as asking for the meter, each check and each document one at a time.
+    const one = async (entity: string, entityId: string) => lab.api.listAudit({ entity, entityId });
+    const apart = [
+      ...(await one('meter', 'TW-01')),
+      ...(await one('check', String(mine.checkId))),
+      ...(await one('document', `${cert.number} revision 1`)),
+    ].sort((a, b) => b.id - a.id);
+    expect(trail).toEqual(apart);
+    expect((await lab.api.listAudit({ meter: 'TW-02' })).map((e) => `${e.action} ${e.entityId}`)).toEqual([
+      'change-state TW-02',
+      'create TW-02',
+    ]);
+    expect(await lab.api.listAudit({ meter: 'NOPE-1' })).toEqual([]);
+    await expect(lab.api.listAudit({ meter: '  ' })).rejects.toThrow(/meter/);
+  });
+
   it('has an entry for every create, record, sign, amend and state change, chained by hash', async () => {
     const lab = await labWithSigners();
     await lab.api.changeMeterState({

@@ -111,6 +111,22 @@ describe('dipledger sign / person add / check', () => {
       ['change-state', 'in-service', 'dial repaired and checked'],
       ['change-state', 'quarantined', 'dial slips'],
     ]);
+    // --meter: the meter's own entries and those of its checks, newest first.
+    const m = io(dir);
+    expect(await runCli(['--db', file, '--json', 'audit', '--meter', 'TW-01'], m)).toBe(0);
+    const whole = JSON.parse(m.stdout.join('\n')) as { action: string; entity: string; entityId: string }[];
+    expect(whole.map((e) => `${e.action} ${e.entity}`)).toEqual(
+      expect.arrayContaining([
+        'change-state meter',
+        'amend check',
+        'sign check',
+        'record check',
+        'create meter',
+      ]),
+    );
+    expect(whole.every((e) => (e.entity === 'meter' ? e.entityId === 'TW-01' : e.entity === 'check'))).toBe(
+      true,
+    );
     expect((await integrity(file)).code).toBe(0);
   });
 });

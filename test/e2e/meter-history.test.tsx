@@ -285,8 +285,17 @@ function historyBench(sweeps: SweepSummary[] = SWEEPS) {
     getTrend: (assetId) => Promise.resolve({ ...structuredClone(TREND), assetId }),
     listSweeps: () => Promise.resolve(structuredClone(sweeps)),
     getCheckRevision: (q) => Promise.resolve(revisionView(q.checkId)),
+    // As the service answers a meter's query: WM-003 itself, its checks 7 and 12, its certificate.
     listAudit: (q) =>
-      Promise.resolve(AUDIT.filter((e) => e.entity === q.entity && e.entityId === q.entityId)),
+      Promise.resolve(
+        AUDIT.filter((e) =>
+          q.meter === 'WM-003'
+            ? (e.entity === 'meter' && e.entityId === 'WM-003') ||
+              (e.entity === 'check' && ['7', '12'].includes(e.entityId)) ||
+              (e.entity === 'document' && e.entityId === 'CERT-0001 revision 1')
+            : e.entity === q.entity && e.entityId === q.entityId,
+        ).sort((a, b) => b.id - a.id),
+      ),
     listDocuments: (q) => Promise.resolve(DOCS.filter((d) => !q?.meter || d.meterAssetId === q.meter)),
   });
 }
@@ -424,14 +433,8 @@ describe('revisions, signatures and audit on a meter page', () => {
     expect(rows[0]).toContain('40');
     expect(rows[0]).toContain('check 12');
     expect(rows[1]).toContain('meter WM-003');
-    expect(asked).toEqual(
-      expect.arrayContaining([
-        expect.objectContaining({ entity: 'meter', entityId: 'WM-003' }),
-        expect.objectContaining({ entity: 'check', entityId: '12' }),
-        expect.objectContaining({ entity: 'check', entityId: '7' }),
-        expect.objectContaining({ entity: 'document', entityId: 'CERT-0001 revision 1' }),
-      ]),
-    );
+    // One call for the whole meter, not one per check.
+    expect(asked).toEqual([{ meter: 'WM-003', limit: 1000 }]);
   });
 });
 

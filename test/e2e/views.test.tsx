@@ -1,16 +1,14 @@
 // @vitest-environment happy-dom
-// The views beyond the register, in happy-dom against a fake LabApi: navigation, the coverage
-// strip, a meter's page with its chart and state change, recording a check with live judgement
-// and a draft saved as it is typed, the lab standards and the settings.
+// The views beyond the register, in happy-dom against a fake LabApi: navigation, a meter's page
+// with its chart and state change, recording a check with live judgement and a draft saved as
+// it is typed, the lab standards and the settings. (The coverage strip: register-view.test.tsx.)
 import { act, cleanup, fireEvent, render, screen, waitFor, within } from '@testing-library/react';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import { App } from '../../renderer/src/App';
-import { CoverageStrip } from '../../renderer/src/CoverageStrip';
 import { MeterPage } from '../../renderer/src/MeterPage';
 import { RecordCheckPage } from '../../renderer/src/RecordCheckPage';
 import { SettingsPage } from '../../renderer/src/SettingsPage';
 import { StandardsPage } from '../../renderer/src/StandardsPage';
-import { coverage, logPosition, packLanes } from '../../renderer/src/coverage';
 import {
   fromDocument,
   toDocument,
@@ -20,7 +18,6 @@ import {
 } from '../../renderer/src/checkForm';
 import { parseRoute } from '../../renderer/src/routes';
 import { LabError } from '../../app/api/errors';
-import { DEMO_ROWS } from './fixtures/fakeLab';
 import { BENCH_STANDARDS, fakeBench } from './fixtures/fakeBench';
 
 afterEach(cleanup);
@@ -58,44 +55,6 @@ describe('navigation', () => {
     window.location.hash = '#/nowhere';
     render(<App api={fakeBench().api} />);
     expect((await screen.findByRole('alert')).textContent).toContain('#/nowhere');
-  });
-});
-
-describe('band coverage', () => {
-  it('finds gaps, stretches held only by quarantined or withdrawn meters, and covered bands', () => {
-    const segs = coverage(DEMO_ROWS).map((s) => [s.fromHz / 1e9, s.toHz / 1e9, s.kind, s.meters.join(' ')]);
-    expect(segs).toEqual([
-      [1, 2, 'usable', 'WM-001'],
-      [2, 2.6, 'gap', ''],
-      [2.6, 3.95, 'usable', 'WM-002'],
-      [3.95, 8.2, 'gap', ''],
-      [8.2, 12.4, 'usable', 'WM-003'],
-      [12.4, 18, 'unusable', 'WM-004'],
-      [18, 26.5, 'gap', ''],
-      [26.5, 40, 'usable', 'WM-005'],
-      [40, 50, 'gap', ''],
-      [50, 75, 'usable', 'WM-006'],
-      [75, 110, 'unusable', 'WM-007'],
-    ]);
-    // A log axis: 10 GHz sits where log(10)/log(110) puts it, about 49 % of the way.
-    expect(logPosition(10e9)).toBeCloseTo(Math.log(10) / Math.log(110), 12);
-    expect(logPosition(0.5e9)).toBe(0);
-    expect(
-      packLanes([
-        { minHz: 1, maxHz: 3 },
-        { minHz: 2, maxHz: 4 },
-        { minHz: 3, maxHz: 5 },
-      ]),
-    ).toHaveLength(2);
-  });
-
-  it('names the gaps in words under the strip', () => {
-    render(<CoverageStrip rows={DEMO_ROWS} />);
-    const text = screen.getByTestId('coverage-gaps').textContent ?? '';
-    expect(text).toContain('4 gaps: 2–2.6 GHz, 3.95–8.2 GHz, 18–26.5 GHz, 40–50 GHz.');
-    expect(text).toContain('Not usable now: 12.4–18 GHz (WM-004), 75–110 GHz (WM-007).');
-    expect(document.querySelectorAll('.seg-gap')).toHaveLength(4);
-    expect(screen.getByText('frequency / GHz (logarithmic)')).toBeTruthy();
   });
 });
 
@@ -220,7 +179,7 @@ describe('recording a check', () => {
     expect(problems.textContent).toContain('Point 1 (8.5 GHz): readings[0].value');
   });
 
-  it('records the check without empty boxes, drops the draft and opens the meter page', async () => {
+  it('records the check without empty boxes, drops the draft and opens the check to sign it', async () => {
     const bench = await openForm();
     fillConditions();
     type(screen.getByLabelText('point 1 (8.5 GHz), up reading 1 in GHz'), '8.501');
@@ -231,7 +190,7 @@ describe('recording a check', () => {
       timeout: 3000,
     });
     fireEvent.click(screen.getByRole('button', { name: 'Record the check' }));
-    await waitFor(() => expect(window.location.hash).toBe('#/meter/WM-003'));
+    await waitFor(() => expect(window.location.hash).toBe('#/check/40'));
     const doc = bench.calls.find((c) => c.op === 'recordCheck')?.args[0] as Record<string, unknown>;
     expect(doc).toMatchObject({
       format: 'dipledger.check/1',
