@@ -1,6 +1,7 @@
 // Sweeps and dials (issue 3): the resonance fit of a trace on its own, the swept points of a meter
 // over its history (resonance, Q, depth, spurious responses), and a divisions meter's dial chart
 // fitted from its check points with a physical cavity model.
+import type { DipPlot } from '../engine/dipplot';
 import type { ResonanceReport } from '../engine/resonance';
 import type { ChartTableRow, DialChartFit } from '../engine/dialchart';
 import type { SweepRecord, SweepSummary } from '../../db/queries/sweeps';
@@ -15,6 +16,8 @@ export interface TraceFit {
   report: ResonanceReport;
   /** Things the reader skipped or guessed (a second option line, extra columns...). */
   warnings: string[];
+  /** The trace and the fitted main dip, thinned for a chart (levels in dB against the baseline). */
+  plot: DipPlot;
 }
 
 export interface DialChartReport {

@@ -1,6 +1,7 @@
 // Sweeps and dials (issue 3): fit a trace on its own, list a meter's swept points, read a check's
 // sweeps, and fit a divisions meter's dial chart from its newest check. All reads: nothing here
 // writes (swept points are written by recordCheck through prepareCheck/writeCheck).
+import { dipPlot } from '../engine/dipplot';
 import { z } from 'zod';
 import { chartTable, DialChartError, fitDialChart } from '../engine/dialchart';
 import { ResonanceError, fitResonances, type Trace } from '../engine/resonance';
@@ -50,6 +51,7 @@ export const sweepOps: OpGroup<keyof SweepApi> = (ctx) => ({
         pointCount: trace.frequencyHz.length,
         report,
         warnings: [],
+        plot: dipPlot(trace, report.main),
       };
       return out;
     } catch (e) {

@@ -102,7 +102,10 @@ export const sweepCommands: CommandGroup = {
           detectorOffsetV: offset,
           method: ctx.values.scalar ? 'scalar' : 'auto',
         });
-        ctx.print(r, () => {
+        // The plot is for drawing; the command line prints the fit and the thinned trace stays out.
+        const printed: Omit<typeof r, 'plot'> & { plot?: unknown } = { ...r };
+        delete printed.plot;
+        ctx.print(printed, () => {
           const m = r.report.main;
           const lines = [
             `${path.basename(file)}: ${r.description}; ${m.method === 'complex-circle' ? 'complex fit (NPL MAT 58)' : 'scalar Lorentzian fit'}`,

@@ -11,6 +11,7 @@ import type { FieldIssue } from '../../app/api/errors';
 import type { CheckDocumentInput } from '../../app/api/schemas';
 import type { PointResult } from '../../app/engine/model';
 import { Cautions } from './Cautions';
+import { SweptPoints } from './SweptPoints';
 import {
   DEFAULT_READINGS_PER_DIRECTION,
   anyReadingTyped,
@@ -20,6 +21,7 @@ import {
   emptyForm,
   fromDocument,
   pointsFromPlan,
+  readingText,
   readingUnit,
   readyToJudge,
   toDocument,
@@ -436,8 +438,40 @@ function CheckEditor({ api, setup }: { api: LabApi; setup: Setup }) {
         <legend>
           <span className="step-no">4</span> Points and readings
         </legend>
+        <div className="row method-pick" role="radiogroup" aria-label="How the points were found">
+          <label className="choice">
+            <input
+              type="radio"
+              name="method"
+              checked={form.method === 'tune-to-dip'}
+              onChange={() => edit((f) => ({ ...f, method: 'tune-to-dip' }))}
+            />{' '}
+            Tuned to the dip (readings in both directions)
+          </label>
+          <label className="choice">
+            <input
+              type="radio"
+              name="method"
+              checked={form.method === 'sweep'}
+              onChange={() =>
+                edit((f) => ({
+                  ...f,
+                  method: 'sweep',
+                  // The dial is set to the plan frequency unless something else was typed.
+                  points: f.points.map((p) => ({
+                    ...p,
+                    dialSetting: p.dialSetting ?? (unit === 'GHz' ? readingText(p.reference, unit) : ''),
+                  })),
+                }))
+              }
+            />{' '}
+            Swept (dial set, source swept across the dip, trace attached)
+          </label>
+        </div>
         {form.meter === '' ? (
           <p className="muted">Choose a meter first: its check plan fills the points.</p>
+        ) : form.method === 'sweep' ? (
+          <SweptPoints api={api} form={form} unit={unit} edit={edit} />
         ) : (
           <PointsTable form={form} unit={unit} edit={edit} judged={judgedNow} meter={meter} />
         )}
@@ -854,7 +888,9 @@ function Review({ form, verdicts, lab }: { form: CheckForm; verdicts: PointResul
   return (
     <div className="review" data-testid="review">
       <p>
-        {verdicts.length} of {form.points.length} points judged
+        {form.method === 'sweep'
+          ? `${form.points.filter((p) => p.sweep).length} of ${form.points.length} points have a trace attached; swept points are judged when recorded`
+          : `${verdicts.length} of ${form.points.length} points judged`}
         {verdicts.length > 0 && ': '}
         {[...counts.entries()]
           .map(

@@ -1,10 +1,11 @@
 // The lab's settings: identity for documents, the decision rule, the reliability target and
-// the interval policy, and the default uncertainties of bench conditions. Saved through
+// the interval policy, the default uncertainties of bench conditions, and people with their keys. Saved through
 // updateLab; a refusal names the field and nothing is changed.
 import { useEffect, useId, useState } from 'react';
 import type { LabApi, LabSettings } from '../../app/api/contract';
 import type { FieldIssue } from '../../app/api/errors';
 import type { DecisionRule } from '../../app/engine/model';
+import { PeopleSection } from './PeopleSection';
 import { messageOf, useLoad } from './useLoad';
 
 export function SettingsPage({ api }: { api: LabApi }) {
@@ -25,6 +26,7 @@ export function SettingsPage({ api }: { api: LabApi }) {
         </p>
       )}
       {load.kind === 'ready' && <SettingsForm api={api} initial={load.value} />}
+      <PeopleSection api={api} />
     </div>
   );
 }

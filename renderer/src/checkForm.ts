@@ -12,6 +12,10 @@ export interface FormPoint {
   up: string[];
   down: string[];
   dipDepthDb: string;
+  /** Sweep method: the graduation the dial was set to, as typed (the column's unit left off)... */
+  dialSetting?: string;
+  /** ...and the trace swept across the dip there, as read from its file. */
+  sweep?: { name: string; text: string };
 }
 
 export interface CheckForm {
@@ -137,6 +141,18 @@ export function toDocument(
     remarks: form.remarks,
     points: form.points.map((p) => {
       const dip = numberOrText(p.dipDepthDb);
+      if (form.method === 'sweep') {
+        // A swept point: the fitted resonance is the reference and the trace is the reading.
+        return {
+          phase: p.phase,
+          ...(p.standard ? { standard: p.standard } : {}),
+          dialSetting: readingValue(p.dialSetting ?? '', unit),
+          ...(p.sweep ? { sweep: { name: p.sweep.name, text: p.sweep.text } } : {}),
+          ...(dip !== undefined ? { dipDepthDb: dip } : {}),
+          // A draft keeps the typed reference, should the method be switched back.
+          ...(keep ? { reference: p.reference } : {}),
+        };
+      }
       return {
         phase: p.phase,
         reference: p.reference,
@@ -179,9 +195,17 @@ export function fromDocument(doc: Record<string, unknown>, unit: string, today: 
         up: side('up'),
         down: side('down'),
         dipDepthDb: str(p.dipDepthDb),
+        ...(p.dialSetting !== undefined ? { dialSetting: readingText(p.dialSetting, unit) } : {}),
+        ...(sweepOf(p.sweep) ? { sweep: sweepOf(p.sweep) } : {}),
       };
     }),
   };
+}
+
+function sweepOf(v: unknown): { name: string; text: string } | undefined {
+  if (typeof v !== 'object' || v === null) return undefined;
+  const { name, text } = v as { name?: unknown; text?: unknown };
+  return typeof text === 'string' ? { name: typeof name === 'string' ? name : 'trace', text } : undefined;
 }
 
 export interface Availability {

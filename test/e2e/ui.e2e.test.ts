@@ -4,7 +4,7 @@
 // form (closing and reopening the window on the way) and finds it in the meter's history.
 // Leaves screenshots of each view in test-output/.
 import { existsSync } from 'node:fs';
-import { mkdir, mkdtemp, rm } from 'node:fs/promises';
+import { mkdir, mkdtemp, readFile, rm, writeFile } from 'node:fs/promises';
 import os from 'node:os';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
@@ -21,13 +21,19 @@ import { createLabFile } from '../../sample-lab/load';
 import { AppShell } from './pages/AppShell';
 import { MeterPage } from './pages/MeterPage';
 import { RecordCheckPage } from './pages/RecordCheckPage';
+import { CheckPage } from './pages/CheckPage';
+import { DocumentsPage } from './pages/DocumentsPage';
 import { RegisterPage } from './pages/RegisterPage';
+import { SettingsPage } from './pages/SettingsPage';
 
 const CHROMIUM = process.env.DIPLEDGER_CHROMIUM ?? '/usr/bin/chromium';
 const repoRoot = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..', '..');
 const outputDir = path.join(repoRoot, 'test-output');
 const haveChromium = existsSync(CHROMIUM);
 const NOW = '2026-12-01T09:00:00.000Z';
+/** Demo passphrases typed in the settings (test data, not a lab's). */
+const ALBA_PASS = 'alba-bench-passphrase';
+const MAREN_PASS = 'maren-review-passphrase';
 if (!haveChromium)
   console.warn(`ui e2e skipped: ${CHROMIUM} not found (CI installs it: apt-get install chromium)`);
 
@@ -51,6 +57,9 @@ describe.skipIf(!haveChromium)(
     let page: Page;
     let shell: AppShell;
     const problems: string[] = [];
+    /** The check recorded through the form, and its certificate as downloaded. */
+    let checkUrl = '';
+    let pdfFile = '';
     /** A full-page screenshot from the top, with no tooltip open, after checking nothing is clipped. */
     const shot = async (name: string) => {
       await page.mouse.move(0, 0);
@@ -119,7 +128,8 @@ describe.skipIf(!haveChromium)(
       expect(await shell.current()).toBe('Register');
       const gaps = await page.getByTestId('coverage-gaps').innerText();
       expect(gaps).toContain('Gap: 8–8.2 GHz.');
-      expect(gaps).toContain('Not usable now: 60–75 GHz (WG-206)');
+      // The service's coverage counts an overdue meter as not usable (CW-103 was due 2026-04-22).
+      expect(gaps).toContain('Not usable now: 4–8 GHz (CW-103 overdue), 60–75 GHz (WG-206 quarantined).');
       expect(await page.locator('.coverage svg .seg-gap').count()).toBe(1);
       expect(await shell.sidewaysOverflow()).toBeLessThanOrEqual(0);
       await shot('ui-register');
@@ -144,7 +154,7 @@ describe.skipIf(!haveChromium)(
       await shot('ui-meter');
     });
 
-    it('records a check through the form, surviving a closed window, and shows it in the history', async () => {
+    it('records a check through the form, surviving a closed window, and opens it to be signed', async () => {
       const meter = new MeterPage(page);
       await meter.recordButton.click();
       const form = new RecordCheckPage(page);
@@ -178,7 +188,65 @@ describe.skipIf(!haveChromium)(
       expect((await lab.api.listDrafts()).length).toBe(1);
 
       await form.recordButton.click();
-      await page.waitForURL(/#\/meter\/WG-201$/);
+      // Recording ends on the check's own page, where it is signed and issued.
+      await page.waitForURL(/#\/check\/\d+$/);
+      checkUrl = page.url();
+      const check = new CheckPage(page);
+      await check.verdict.waitFor();
+      expect(await check.verdict.innerText()).toContain('Pass');
+      expect(await check.state.innerText()).toContain('not signed yet');
+      expect(await lab.api.listDrafts()).toEqual([]);
+      // Nobody in the demo lab has a signing key yet: the page says where to make one.
+      expect(await page.getByText('No one in this lab has a signing key yet').count()).toBe(1);
+      await shot('ui-check-unsigned');
+    });
+
+    it('gives two people signing keys in the settings', async () => {
+      await shell.go('Settings');
+      const settings = new SettingsPage(page);
+      await settings.people.waitFor();
+      expect(await settings.person('Alba Quennell').innerText()).toContain('none: cannot sign');
+      await settings.giveKey('Alba Quennell', ALBA_PASS);
+      await settings.giveKey('Maren Holt-Ibsen', MAREN_PASS);
+      expect(await settings.person('Alba Quennell').innerText()).toMatch(/enrolled 2026-12-01/);
+      expect((await lab.api.listSigners()).map((x) => x.person.name).sort()).toEqual([
+        'Alba Quennell',
+        'Maren Holt-Ibsen',
+      ]);
+      await shot('ui-settings-people');
+    });
+
+    it('signs the check (a wrong passphrase signs nothing), issues its certificate, and the register follows', async () => {
+      await page.goto(checkUrl);
+      const check = new CheckPage(page);
+      await check.verdict.waitFor();
+      await check.sign('Alba Quennell', 'not-her-passphrase', 'performed');
+      await check.problems.waitFor();
+      expect(await check.problems.innerText()).toContain('nothing was signed');
+      // That refusal was expected: the browser logs its HTTP 422, which is not a problem here.
+      const expected = (p: string) => /422|signCheck/.test(p);
+      problems.splice(0, problems.length, ...problems.filter((p) => !expected(p)));
+      await check.sign('Alba Quennell', ALBA_PASS, 'performed');
+      await check.signatures.waitFor();
+      await check.sign('Maren Holt-Ibsen', MAREN_PASS, 'reviewed');
+      await expect.poll(() => check.signatures.innerText()).toMatch(/reviewed by Maren Holt-Ibsen/);
+      expect(await check.signatures.innerText()).toMatch(/performed by Alba Quennell/);
+      expect(await check.state.innerText()).toContain('reviewed');
+      pdfFile = await check.issue('certificate', path.join(tmp, 'certificate.pdf'));
+      expect(await page.getByTestId('issued').innerText()).toMatch(/Issued certificate C-2026-\d{4}/);
+      await shot('ui-check-signed');
+
+      // The register shows the new check: its date, its verdict, and a due date a full interval on.
+      const register = new RegisterPage(page);
+      await shell.go('Register');
+      await register.rows.first().waitFor();
+      const row = await page.locator('tr[data-asset-id="WG-201"]').innerText();
+      expect(row).toContain('2026-12-01');
+      expect(row).toContain('Pass');
+      expect(row).not.toContain('overdue');
+
+      const meter = new MeterPage(page);
+      await page.locator('table.register').getByRole('link', { name: 'WG-201' }).click();
       await meter.powerLimit.waitFor();
       await expect.poll(() => meter.checkDates()).toContain('2026-12-01');
       expect((await meter.checkDates())[0]).toBe('2026-12-01');
@@ -186,7 +254,6 @@ describe.skipIf(!haveChromium)(
       expect(newest.join(' | ')).toMatch(
         /2026-12-01 \| \d+ \| 1 \| .*Alba Quennell \| 7 \| .*Pass \| .*Pass/,
       );
-      expect(await lab.api.listDrafts()).toEqual([]);
       const detail = await lab.api.getMeter('WG-201');
       expect(detail.register.lastCheckDate).toBe('2026-12-01');
       await meter.waitForChart();
@@ -231,6 +298,48 @@ describe.skipIf(!haveChromium)(
       expect(byMeter['WG-208']).toMatch(/✗ No\s+WG-208 is withdrawn/);
       expect(await page.getByTestId('use-correction').innerText()).toMatch(/^Add [+−]\d+\.\d\d ppm/);
       await shot('ui-fit-for-use');
+    });
+
+    it('verifies the issued certificate, and catches a changed byte', async () => {
+      await shell.go('Documents');
+      const docs = new DocumentsPage(page);
+      await docs.issued.waitFor();
+      expect(await docs.issued.innerText()).toMatch(/C-2026-\d{4}/);
+      const text = await docs.verify(pdfFile);
+      expect(text).toMatch(/✓ Genuine: certificate\.pdf is certificate C-2026-\d{4} revision 1 of WG-201/);
+      expect(text).not.toContain('FAIL');
+      await shot('ui-documents-verified');
+      // One byte changed inside the file: the same page says it is not what was issued.
+      const bytes = await readFile(pdfFile);
+      const at = Math.floor(bytes.length / 2);
+      bytes[at] = (bytes[at] ?? 0) ^ 0x01;
+      const changed = path.join(tmp, 'changed.pdf');
+      await writeFile(changed, bytes);
+      expect(await docs.verify(changed)).toContain('✗ NOT VERIFIED');
+    });
+
+    it('refuses a browser that brings a wrong token, or none', async () => {
+      const stranger = await browser.newContext();
+      try {
+        const p = await stranger.newPage();
+        const wrong = await p.goto(`${server.url}?token=this-is-not-the-token-0123456789`);
+        expect(wrong?.status()).toBe(401);
+        expect(await p.locator('body').innerText()).toContain('needs its per-launch token');
+        const none = await p.goto(server.url);
+        expect(none?.status()).toBe(401);
+        const api = await p.evaluate(async () => {
+          const r = await fetch('/api/listMeters', {
+            method: 'POST',
+            headers: { 'content-type': 'application/json' },
+            body: JSON.stringify({ args: [] }),
+          });
+          return { status: r.status, body: await r.text() };
+        });
+        expect(api.status).toBe(401);
+        expect(api.body).not.toContain('WG-201');
+      } finally {
+        await stranger.close();
+      }
     });
 
     it('shows the lab standards and the settings', async () => {
