@@ -4,7 +4,6 @@
 // sweep method in the record form (a trace attached per point, fitted, its dip drawn).
 import { cleanup, fireEvent, render, screen, waitFor, within } from '@testing-library/react';
 import { afterEach, describe, expect, it } from 'vitest';
-import type { LabApi } from '../../app/api/contract';
 import type { IssuedDocument, IssuedDocumentFile } from '../../app/api/contract-documents';
 import type { CheckRevisionView, Signer } from '../../app/api/contract-records';
 import type { TraceFit } from '../../app/api/contract-sweep';
@@ -145,7 +144,7 @@ function checkBench() {
       documents.push(doc);
       return Promise.resolve(doc);
     },
-  } as Partial<LabApi>);
+  });
   return { api, view, signed, issued };
 }
 
