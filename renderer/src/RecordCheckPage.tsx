@@ -263,6 +263,7 @@ function CheckEditor({ api, setup }: { api: LabApi; setup: Setup }) {
     window.location.hash = href.register();
   }
 
+  const meterSelectId = useId();
   const meterRows = setup.meters.filter((m) => m.state !== 'withdrawn' || m.assetId === form.meter);
   const verdicts = form.points
     .map((_, i) => judgedNow(i))
@@ -293,9 +294,10 @@ function CheckEditor({ api, setup }: { api: LabApi; setup: Setup }) {
           <span className="step-no">1</span> Meter, date and who
         </legend>
         <div className="row">
-          <label className="field">
-            <span>Meter</span>
+          <div className="field">
+            <label htmlFor={meterSelectId}>Meter</label>
             <select
+              id={meterSelectId}
               value={form.meter}
               onChange={(e) => void chooseMeter(e.target.value)}
               autoFocus={form.meter === ''}
@@ -308,7 +310,7 @@ function CheckEditor({ api, setup }: { api: LabApi; setup: Setup }) {
                 </option>
               ))}
             </select>
-          </label>
+          </div>
           <label className="field">
             <span>Date of the check (YYYY-MM-DD)</span>
             <input

@@ -11,13 +11,14 @@ import { fileURLToPath } from 'node:url';
 import { chromium } from 'playwright-core';
 import type { Browser, Page } from 'playwright-core';
 import { build } from 'vite';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
 import { openApi } from '../../app/api/open';
 import type { OpenedLab } from '../../app/api/open';
 import { fixedClock } from '../../app/api/service';
 import { startServer } from '../../app/server/server';
 import type { RunningServer } from '../../app/server/server';
 import { createLabFile } from '../../sample-lab/load';
+import { syntheticSweep } from '../fixtures/sweeps';
 import { AppShell } from './pages/AppShell';
 import { MeterPage } from './pages/MeterPage';
 import { RecordCheckPage } from './pages/RecordCheckPage';
@@ -34,6 +35,8 @@ const NOW = '2026-12-01T09:00:00.000Z';
 /** Demo passphrases typed in the settings (test data, not a lab's). */
 const ALBA_PASS = 'alba-bench-passphrase';
 const MAREN_PASS = 'maren-review-passphrase';
+// A real browser on a real lab file: a busy machine can take tens of seconds for the long steps.
+vi.setConfig({ testTimeout: 120_000 });
 if (!haveChromium)
   console.warn(`ui e2e skipped: ${CHROMIUM} not found (CI installs it: apt-get install chromium)`);
 
@@ -298,6 +301,51 @@ describe.skipIf(!haveChromium)(
       expect(byMeter['WG-208']).toMatch(/✗ No\s+WG-208 is withdrawn/);
       expect(await page.getByTestId('use-correction').innerText()).toMatch(/^Add [+−]\d+\.\d\d ppm/);
       await shot('ui-fit-for-use');
+    });
+
+    it('attaches a swept trace to a point and draws the fitted dip over it', async () => {
+      // An invented trace: a 2 dB dip at 9.3002 GHz, loaded Q 1500, seeded noise.
+      const f0 = 9.3002e9;
+      const w = f0 / 1500;
+      const s = syntheticSweep([{ f0Hz: f0, loadedQ: 1500, depthDb: 2 }], {
+        startHz: f0 - 5 * w,
+        stopHz: f0 + 5 * w,
+        points: 801,
+        seed: 7,
+      });
+      const lines = s.frequencyHz.map(
+        (f, i) => `${(f / 1e9).toFixed(7)},${(10 * Math.log10((s.power[i] as number) / 1e-3)).toFixed(5)}`,
+      );
+      const traceFile = path.join(tmp, 'wg201-9g3.csv');
+      await writeFile(traceFile, ['frequency_GHz,level_dB', ...lines].join('\n'));
+
+      await shell.go('Record a check');
+      const form = new RecordCheckPage(page);
+      await form.chooseMeter('WG-201');
+      await page.getByRole('radio', { name: /Swept/ }).check();
+      const point = page.locator('[data-testid="swept-points"] li[data-point="2"]');
+      expect(await point.getByLabel(/dial set to \/ GHz/).inputValue()).toBe('9.3');
+      await point.getByLabel(/swept trace/).setInputFiles(traceFile);
+      const result = point.getByTestId('swept-result');
+      await result.waitFor();
+      const said = await result.innerText();
+      expect(said).toMatch(/wg201-9g3\.csv: resonance at 9\.\d{6} GHz, loaded Q 1[45]\d\d, dip 2\.0\d dB/);
+      // Within 1 % of the linewidth (6.2 MHz) of the invented resonance.
+      const fittedGhz = Number(/resonance at (\d+\.\d+) GHz/.exec(said)?.[1]);
+      expect(Math.abs(fittedGhz * 1e9 - f0)).toBeLessThan(0.01 * w);
+      const chart = point.getByRole('figure', { name: 'Swept trace wg201-9g3.csv with the fitted dip' });
+      // The measured points and the fitted curve are both drawn, with units on the axes.
+      expect(await chart.locator('.recharts-scatter-symbol').count()).toBeGreaterThan(200);
+      expect(await chart.locator('path.recharts-curve').count()).toBeGreaterThanOrEqual(1);
+      const text = await chart.innerText();
+      expect(text).toContain('offset from f0 / MHz');
+      expect(text).toContain('level / dB');
+      await point.scrollIntoViewIfNeeded();
+      await chart.screenshot({ path: path.join(outputDir, 'ui-record-sweep-dip.png') });
+      // Not recorded: the draft is thrown away.
+      await expect.poll(() => form.draftStatus.innerText(), { timeout: 10_000 }).toMatch(/Draft \d+ saved/);
+      await page.getByRole('button', { name: 'Discard this draft' }).click();
+      await expect.poll(() => lab.api.listDrafts()).toEqual([]);
     });
 
     it('verifies the issued certificate, and catches a changed byte', async () => {
