@@ -16,6 +16,9 @@ export function DipChart({ fit, name }: { fit: TraceFit; name: string }) {
   const low = Math.min(...fit.plot.measuredDb, ...fit.plot.fittedDb);
   const high = Math.max(...fit.plot.measuredDb, ...fit.plot.fittedDb);
   const pad = Math.max(0.1, (high - low) * 0.1);
+  const span = Math.max(...rows.map((r) => Math.abs(r.dfMHz)));
+  const xTicks = niceTicks(-span, span, 7);
+  const yTicks = niceTicks(low - pad, high + pad, 6);
   return (
     <figure className="chart dip-chart" ref={ref} aria-label={`Swept trace ${name} with the fitted dip`}>
       <ComposedChart width={width} height={240} margin={{ top: 8, right: 16, bottom: 28, left: 12 }}>
@@ -23,14 +26,16 @@ export function DipChart({ fit, name }: { fit: TraceFit; name: string }) {
         <XAxis
           type="number"
           dataKey="dfMHz"
-          domain={['dataMin', 'dataMax']}
-          tickFormatter={(v: number) => v.toFixed(2)}
+          domain={[xTicks[0] ?? -span, xTicks.at(-1) ?? span]}
+          ticks={xTicks}
+          tickFormatter={(v: number) => trimNumber(v)}
           label={{ value: `offset from f0 / MHz`, position: 'insideBottom', offset: -16 }}
         />
         <YAxis
           type="number"
-          domain={[Math.floor((low - pad) * 10) / 10, Math.ceil((high + pad) * 10) / 10]}
-          tickFormatter={(v: number) => v.toFixed(1)}
+          domain={[yTicks[0] ?? low, yTicks.at(-1) ?? high]}
+          ticks={yTicks}
+          tickFormatter={(v: number) => trimNumber(v)}
           width={56}
           label={{ value: 'level / dB', angle: -90, position: 'insideLeft', offset: 4, dy: 30 }}
         />
@@ -40,17 +45,19 @@ export function DipChart({ fit, name }: { fit: TraceFit; name: string }) {
           dataKey="measuredDb"
           name="measured"
           fill="#2f5d7c"
-          shape="circle"
+          // Small dots, so the fitted curve drawn over them stays visible.
+          shape={(props: { cx?: number; cy?: number }) => (
+            <circle cx={props.cx} cy={props.cy} r={1.6} fill="#2f5d7c" fillOpacity={0.55} />
+          )}
           legendType="circle"
           isAnimationActive={false}
-          r={1.5}
         />
         <Line
           data={rows}
           dataKey="fittedDb"
           name="fitted dip"
-          stroke="#b0600e"
-          strokeWidth={2}
+          stroke="#c0392b"
+          strokeWidth={2.5}
           dot={false}
           isAnimationActive={false}
         />
@@ -63,4 +70,21 @@ export function DipChart({ fit, name }: { fit: TraceFit; name: string }) {
       </figcaption>
     </figure>
   );
+}
+
+/** Round steps (1, 2 or 5 times a power of ten) covering [low, high]. */
+export function niceTicks(low: number, high: number, count: number): number[] {
+  const raw = (high - low) / Math.max(1, count - 1);
+  if (!(raw > 0) || !Number.isFinite(raw)) return [low, high];
+  const mag = 10 ** Math.floor(Math.log10(raw));
+  const step = ([1, 2, 5, 10].find((m) => m * mag >= raw) ?? 10) * mag;
+  const first = Math.floor(low / step) * step;
+  const ticks: number[] = [];
+  for (let t = first; t <= high + step * 1e-9; t += step) ticks.push(Number(t.toPrecision(12)));
+  if ((ticks.at(-1) ?? -Infinity) < high) ticks.push(Number((first + ticks.length * step).toPrecision(12)));
+  return ticks;
+}
+
+function trimNumber(v: number): string {
+  return String(Number(v.toPrecision(6))).replace('-', '−');
 }

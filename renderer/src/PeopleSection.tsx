@@ -70,7 +70,7 @@ function PeopleTable({ people, signers }: { people: Person[]; signers: Signer[] 
                 <td>
                   {k ? (
                     <>
-                      <span aria-hidden="true">🔑 </span>enrolled {k.enrolledAt.slice(0, 10)} ·{' '}
+                      <span aria-hidden="true">✓ </span>enrolled {k.enrolledAt.slice(0, 10)} ·{' '}
                       <span className="mono">{k.keyFingerprint.slice(0, 16)}…</span>
                     </>
                   ) : (
@@ -129,8 +129,8 @@ function AddPerson({ api, onDone }: { api: LabApi; onDone: () => void }) {
         <button type="submit" className="button" disabled={status.kind === 'busy'}>
           Add the person
         </button>
-        <StatusLine status={status} verb="Not added" />
       </div>
+      <StatusLine status={status} verb="Not added" />
     </form>
   );
 }
@@ -232,8 +232,8 @@ function EnrolKey(props: { api: LabApi; people: Person[]; signers: Signer[]; onD
         >
           Make the signing key
         </button>
-        <StatusLine status={status} verb="No key made" />
       </div>
+      <StatusLine status={status} verb="No key made" />
     </form>
   );
 }
@@ -243,19 +243,19 @@ function failed(err: unknown): Status {
 }
 
 function StatusLine({ status, verb }: { status: Status; verb: string }) {
-  if (status.kind === 'busy') return <span className="status">Working…</span>;
+  if (status.kind === 'busy') return <p className="status">Working…</p>;
   if (status.kind === 'done')
     return (
-      <span role="status" className="status ok">
+      <p role="status" className="status ok">
         {status.text}
-      </span>
+      </p>
     );
   if (status.kind === 'failed')
     return (
-      <span role="alert" className="status error">
+      <p role="alert" className="status error">
         <strong>✗ {verb}; nothing was changed.</strong>{' '}
         {status.issues.length > 0 ? status.issues.map((i) => i.message).join('; ') : status.message}
-      </span>
+      </p>
     );
   return null;
 }
