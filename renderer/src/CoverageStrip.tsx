@@ -1,10 +1,21 @@
-// The coverage strip of the register: the lab's meters laid along a logarithmic frequency axis
-// from 1 to 110 GHz, so a gap in the bands, or a band held only by a quarantined meter, is seen
-// at a glance. Each stretch is named in words below the drawing, not only by its fill.
+// The coverage strip of the register: the lab's band coverage as the service's `coverage`
+// operation reports it, laid along a logarithmic frequency axis from 1 to 110 GHz, so a gap in
+// the bands, or a band held only by a quarantined, withdrawn or overdue meter, is seen at a
+// glance. Each stretch is named in words below the drawing, not only by its fill.
+import { memo } from 'react';
 import type { RegisterRow } from '../../app/api/contract';
-import { COVERAGE_MAX_HZ, COVERAGE_MIN_HZ, coverage, logPosition, packLanes } from './coverage';
+import type { CoverageReport } from '../../app/api/contract-history';
+import {
+  COVERAGE_MAX_HZ,
+  COVERAGE_MIN_HZ,
+  logPosition,
+  notUsableBecause,
+  packLanes,
+  stripSegments,
+} from './coverage';
 import type { CoverageKind } from './coverage';
 import { formatBand } from './format';
+import { effectiveDue } from './registerFilters';
 import { useWidth } from './useWidth';
 
 const TICKS_GHZ = [1, 2, 5, 10, 20, 50, 110];
@@ -13,14 +24,44 @@ const MINOR_GHZ = [3, 4, 6, 7, 8, 9, 30, 40, 60, 70, 80, 90];
 const MAX_LANE_METERS = 40;
 
 export const COVERAGE_WORDS: Record<CoverageKind, { symbol: string; word: string }> = {
-  usable: { symbol: '■', word: 'covered by a meter in service' },
-  unusable: { symbol: '▨', word: 'only quarantined or withdrawn meters' },
+  usable: { symbol: '■', word: 'covered by a meter in service and in date' },
+  unusable: {
+    symbol: '▨',
+    word: 'only meters not usable now (quarantined, withdrawn, overdue or never checked)',
+  },
   gap: { symbol: '□', word: 'gap: no meter' },
 };
 
-export function CoverageStrip({ rows }: { rows: RegisterRow[] }) {
+/** A meter in service whose check has lapsed is drawn like a quarantined one: it is not usable. */
+function laneClass(r: RegisterRow): string {
+  if (r.state !== 'in-service') return `lane lane-${r.state}`;
+  return r.daysToDue === null || effectiveDue(r) === 'overdue' ? 'lane lane-lapsed' : 'lane lane-in-service';
+}
+
+function laneMark(r: RegisterRow): string {
+  if (r.state === 'quarantined') return ' ◆';
+  if (r.state === 'withdrawn') return ' ○';
+  return laneClass(r) === 'lane lane-lapsed' ? ' ⚠' : '';
+}
+
+/** Memoised: the register re-renders on every filter keystroke, the strip only on new data. */
+export const CoverageStrip = memo(function CoverageStrip({
+  report,
+  rows,
+}: {
+  report: CoverageReport;
+  rows: RegisterRow[];
+}) {
   const [ref, width] = useWidth<HTMLDivElement>(960);
-  const segments = coverage(rows);
+  const segments = stripSegments(report);
+  const byId = new Map(rows.map((r) => [r.assetId, r]));
+  const named = (ids: string[]) =>
+    ids
+      .map((id) => {
+        const why = notUsableBecause(byId.get(id));
+        return why ? `${id} ${why}` : id;
+      })
+      .join(', ');
   const pad = 14;
   const inner = Math.max(200, width - 2 * pad);
   const x = (hz: number) => pad + logPosition(hz) * inner;
@@ -37,7 +78,7 @@ export function CoverageStrip({ rows }: { rows: RegisterRow[] }) {
 
   return (
     <section className="coverage" aria-labelledby="coverage-title">
-      <h2 id="coverage-title">Band coverage, 1 to 110 GHz</h2>
+      <h2 id="coverage-title">Band coverage, 1 to 110 GHz, as of {report.asOf}</h2>
       <div ref={ref} className="coverage-drawing">
         <svg
           width={width}
@@ -66,7 +107,7 @@ export function CoverageStrip({ rows }: { rows: RegisterRow[] }) {
                 height={stripHeight}
                 fill={s.kind === 'unusable' ? 'url(#coverage-hatch)' : undefined}
               >
-                <title>{`${formatBand(s.fromHz, s.toHz)}: ${COVERAGE_WORDS[s.kind].word}${s.meters.length ? ` (${s.meters.join(', ')})` : ''}`}</title>
+                <title>{`${formatBand(s.fromHz, s.toHz)}: ${COVERAGE_WORDS[s.kind].word}${s.meters.length ? ` (${s.kind === 'usable' ? s.meters.join(', ') : named(s.meters)})` : ''}`}</title>
               </rect>
               {s.kind === 'gap' && (
                 <text
@@ -85,7 +126,7 @@ export function CoverageStrip({ rows }: { rows: RegisterRow[] }) {
               const x0 = x(r.minHz);
               const w = Math.max(2, x(r.maxHz) - x0);
               return (
-                <g key={r.assetId} className={`lane lane-${r.state}`}>
+                <g key={r.assetId} className={laneClass(r)}>
                   <rect
                     x={x0 + 1}
                     y={laneTop + i * laneHeight}
@@ -96,10 +137,10 @@ export function CoverageStrip({ rows }: { rows: RegisterRow[] }) {
                   {w > r.assetId.length * 6.4 + 6 && (
                     <text x={x0 + w / 2} y={laneTop + i * laneHeight + 9.5} textAnchor="middle">
                       {r.assetId}
-                      {r.state === 'in-service' ? '' : r.state === 'quarantined' ? ' ◆' : ' ○'}
+                      {laneMark(r)}
                     </text>
                   )}
-                  <title>{`${r.assetId}: ${formatBand(r.minHz, r.maxHz)}, ${r.state}`}</title>
+                  <title>{`${r.assetId}: ${formatBand(r.minHz, r.maxHz)}, ${r.state}${laneClass(r).endsWith('lapsed') ? ', not in date' : ''}`}</title>
                 </g>
               );
             }),
@@ -148,10 +189,10 @@ export function CoverageStrip({ rows }: { rows: RegisterRow[] }) {
             <strong>
               <span aria-hidden="true">▨ </span>Not usable now:
             </strong>{' '}
-            {unusable.map((u) => `${formatBand(u.fromHz, u.toHz)} (${u.meters.join(', ')})`).join(', ')}.
+            {unusable.map((u) => `${formatBand(u.fromHz, u.toHz)} (${named(u.meters)})`).join(', ')}.
           </>
         )}
       </p>
     </section>
   );
-}
+});

@@ -1,12 +1,30 @@
-// The register: every meter of the lab with its state, last verdict and when it falls due,
-// searchable by asset id or description, and the lab's band coverage. Reads through the
-// LabApi client only.
-import { useDeferredValue, useEffect, useMemo, useState } from 'react';
+// The register: every meter of the lab with its band, state, last verdict, due date and drift
+// or health flags, narrowed by filters and sorted by column (soonest due first), and the lab's
+// band coverage as the service reports it. Reads through the LabApi client only; the flags
+// (from the due list) and the coverage load on their own so the table shows first.
+import { useCallback, useDeferredValue, useEffect, useMemo, useState } from 'react';
 import type { LabApi, LabSettings, RegisterRow } from '../../app/api/contract';
+import type { CoverageReport } from '../../app/api/contract-history';
 import { Cautions } from './Cautions';
 import { CoverageStrip } from './CoverageStrip';
-import { STATE_LABEL, VERDICT_LABEL, dueStatus, formatBand, formatDays, SOON_DAYS } from './format';
-import { href } from './routes';
+import { RegisterFilterBar } from './RegisterFilterBar';
+import { RegisterTable } from './RegisterTable';
+import { SOON_DAYS } from './format';
+import {
+  DEFAULT_SORT,
+  NO_FILTERS,
+  effectiveDue,
+  filterRows,
+  filtersActive,
+  sortRows,
+} from './registerFilters';
+import type { RegisterFilters, Sort, SortKey } from './registerFilters';
+import { messageOf, useLoad } from './useLoad';
+
+export { filterRows } from './registerFilters';
+
+/** The due list's horizon, its largest: every meter not withdrawn, with its flags. */
+const FLAGS_WITHIN_DAYS = 3650;
 
 type Load =
   | { kind: 'loading' }
@@ -15,24 +33,47 @@ type Load =
 
 export function RegisterPage({ api }: { api: LabApi }) {
   const [load, setLoad] = useState<Load>({ kind: 'loading' });
-  const [query, setQuery] = useState('');
-  const deferredQuery = useDeferredValue(query);
+  const [filters, setFilters] = useState<RegisterFilters>(NO_FILTERS);
+  const [sort, setSort] = useState<Sort>(DEFAULT_SORT);
+  // Typing stays quick with thousands of rows: the table follows a keystroke behind if it must.
+  const deferredFilters = useDeferredValue(filters);
 
   useEffect(() => {
     let live = true;
     Promise.all([api.getLab(), api.listMeters()])
       .then(([lab, rows]) => live && setLoad({ kind: 'ready', lab, rows }))
-      .catch(
-        (e: unknown) =>
-          live && setLoad({ kind: 'failed', message: e instanceof Error ? e.message : String(e) }),
-      );
+      .catch((e: unknown) => live && setLoad({ kind: 'failed', message: messageOf(e) }));
     return () => {
       live = false;
     };
   }, [api]);
 
-  const rows = load.kind === 'ready' ? load.rows : [];
-  const shown = useMemo(() => filterRows(rows, deferredQuery), [rows, deferredQuery]);
+  const [flagLoad] = useLoad(
+    async () =>
+      new Map((await api.listDue({ withinDays: FLAGS_WITHIN_DAYS })).map((r) => [r.assetId, r.flags ?? []])),
+    [api],
+  );
+  const [coverageLoad] = useLoad<CoverageReport>(() => api.coverage(), [api]);
+
+  const rows = useMemo(() => {
+    const base = load.kind === 'ready' ? load.rows : [];
+    if (flagLoad.kind !== 'ready') return base;
+    return base.map((r) => ({ ...r, flags: flagLoad.value.get(r.assetId) ?? [] }));
+  }, [load, flagLoad]);
+  const shown = useMemo(
+    () => sortRows(filterRows(rows, deferredFilters), sort),
+    [rows, deferredFilters, sort],
+  );
+
+  const onSort = useCallback(
+    (key: SortKey) =>
+      setSort((s) =>
+        s.key === key
+          ? { key, dir: s.dir === 'ascending' ? 'descending' : 'ascending' }
+          : { key, dir: 'ascending' },
+      ),
+    [],
+  );
 
   useEffect(() => {
     document.title = load.kind === 'ready' ? `${load.lab.name}: register · Dipledger` : 'Dipledger';
@@ -56,41 +97,48 @@ export function RegisterPage({ api }: { api: LabApi }) {
         )}
         {load.kind === 'ready' && (
           <>
-            <div className="toolbar">
-              <label htmlFor="meter-search">Find a meter</label>
-              <input
-                id="meter-search"
-                type="search"
-                placeholder="Asset id or description"
-                autoComplete="off"
-                spellCheck={false}
-                value={query}
-                onChange={(e) => setQuery(e.target.value)}
-              />
-              <Summary all={load.rows} shown={shown} />
-            </div>
-            <RegisterTable rows={shown} query={deferredQuery} />
-            <CoverageStrip rows={load.rows} />
+            <RegisterFilterBar
+              filters={filters}
+              onChange={setFilters}
+              flagsReady={flagLoad.kind === 'ready'}
+            />
+            <Summary all={rows} shown={shown} />
+            {flagLoad.kind === 'failed' && (
+              <p className="status error" role="alert">
+                Drift and health flags could not be loaded: {flagLoad.message}
+              </p>
+            )}
+            <RegisterTable
+              rows={shown}
+              total={rows.length}
+              sort={sort}
+              onSort={onSort}
+              flagsLoaded={flagLoad.kind === 'ready'}
+              emptyText={emptyText(rows.length, deferredFilters)}
+            />
+            {coverageLoad.kind === 'loading' && <p className="status">Loading the band coverage…</p>}
+            {coverageLoad.kind === 'failed' && (
+              <p className="status error" role="alert">
+                The band coverage could not be loaded: {coverageLoad.message}
+              </p>
+            )}
+            {coverageLoad.kind === 'ready' && <CoverageStrip report={coverageLoad.value} rows={load.rows} />}
           </>
         )}
       </main>
 
       <footer className="footnote">
-        Dates are YYYY-MM-DD. Days to due are counted from today on the lab service’s clock; d = days.
+        Dates are YYYY-MM-DD. Days to due are counted from today on the lab service’s clock; d = days. Flags
+        (⚑) are drift and dip-health findings worth attention, from each meter’s history.
       </footer>
     </div>
   );
 }
 
-export function filterRows(rows: RegisterRow[], query: string): RegisterRow[] {
-  const q = query.trim().toLowerCase();
-  if (!q) return rows;
-  return rows.filter((r) => r.assetId.toLowerCase().includes(q) || r.description.toLowerCase().includes(q));
-}
-
-/** Withdrawn meters are not used, so their due date is not a warning. */
-function effectiveDue(row: RegisterRow) {
-  return row.state === 'withdrawn' ? 'none' : dueStatus(row.daysToDue);
+function emptyText(total: number, f: RegisterFilters): string {
+  if (total === 0) return 'The register has no meters yet.';
+  const textOnly = filtersActive(f) && !filtersActive({ ...f, text: '' });
+  return textOnly ? `No meter matches “${f.text.trim()}”.` : 'No meter matches these filters.';
 }
 
 function Summary({ all, shown }: { all: RegisterRow[]; shown: RegisterRow[] }) {
@@ -99,95 +147,12 @@ function Summary({ all, shown }: { all: RegisterRow[]; shown: RegisterRow[] }) {
   const count =
     shown.length === all.length ? `${all.length} meters` : `Showing ${shown.length} of ${all.length} meters`;
   return (
-    <p className="summary" aria-live="polite">
+    <p className="summary register-summary" aria-live="polite" data-testid="register-count">
       <span>{count}</span>
       <span className={overdue > 0 ? 'tally tally-overdue' : 'tally'}>{overdue} overdue</span>
       <span className="tally">
         {soon} due within {SOON_DAYS} d
       </span>
     </p>
-  );
-}
-
-function RegisterTable({ rows, query }: { rows: RegisterRow[]; query: string }) {
-  return (
-    <div className="table-wrap">
-      <table className="register">
-        <caption className="visually-hidden">Meters in the register</caption>
-        <thead>
-          <tr>
-            <th scope="col">Asset id</th>
-            <th scope="col">Description</th>
-            <th scope="col">Construction</th>
-            <th scope="col" className="num">
-              Band
-            </th>
-            <th scope="col">State</th>
-            <th scope="col">Last verdict</th>
-            <th scope="col" className="num">
-              Due date
-            </th>
-            <th scope="col" className="num">
-              Days to due
-            </th>
-          </tr>
-        </thead>
-        <tbody>
-          {rows.map((row) => (
-            <MeterRow key={row.assetId} row={row} />
-          ))}
-          {rows.length === 0 && (
-            <tr>
-              <td colSpan={8} className="empty">
-                {query.trim() ? `No meter matches “${query.trim()}”.` : 'The register has no meters yet.'}
-              </td>
-            </tr>
-          )}
-        </tbody>
-      </table>
-    </div>
-  );
-}
-
-function MeterRow({ row }: { row: RegisterRow }) {
-  const due = effectiveDue(row);
-  const state = STATE_LABEL[row.state];
-  const verdict = row.lastVerdict ? VERDICT_LABEL[row.lastVerdict] : null;
-  return (
-    <tr className={`due-${due} state-${row.state}`} data-asset-id={row.assetId}>
-      <th scope="row" className="asset">
-        <a href={href.meter(row.assetId)}>{row.assetId}</a>
-      </th>
-      <td>{row.description || <span className="muted">(no description)</span>}</td>
-      <td>{row.construction === 'waveguide' ? 'Waveguide' : 'Coaxial'}</td>
-      <td className="num">{formatBand(row.minHz, row.maxHz)}</td>
-      <td>
-        <span className={`badge state-badge-${row.state}`}>
-          <span aria-hidden="true">{state.symbol}</span> {state.word}
-        </span>
-      </td>
-      <td>
-        {verdict ? (
-          <span className={`verdict verdict-${row.lastVerdict}`}>
-            <span aria-hidden="true">{verdict.symbol}</span> {verdict.word}
-          </span>
-        ) : (
-          <span className="muted">Not checked yet</span>
-        )}
-      </td>
-      <td className="num">{row.dueDate ?? '—'}</td>
-      <td className={`num days days-${due}`}>
-        {row.state === 'withdrawn' ? (
-          <span className="muted">not in use</span>
-        ) : due === 'overdue' ? (
-          <strong>
-            <span aria-hidden="true">⚠ </span>
-            {formatDays(row.daysToDue)}
-          </strong>
-        ) : (
-          formatDays(row.daysToDue)
-        )}
-      </td>
-    </tr>
   );
 }

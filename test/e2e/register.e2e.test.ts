@@ -1,5 +1,6 @@
 // End to end in browser mode: the built renderer served by the loopback server over a fake
-// lab, driven in Debian's Chromium. Leaves test-output/register.png to look at.
+// lab, driven in Debian's Chromium: the columns, the filters and sorting from the keyboard, and a
+// fleet of 2,000 meters that mounts only a window of rows. Leaves test-output/register.png.
 import { existsSync } from 'node:fs';
 import { mkdir, mkdtemp, rm } from 'node:fs/promises';
 import os from 'node:os';
@@ -12,6 +13,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { startServer } from '../../app/server/server';
 import type { RunningServer } from '../../app/server/server';
 import { DEMO_LAB, DEMO_ROWS, fakeLabApi } from './fixtures/fakeLab';
+import { fleetApi, fleetAssetId } from './fixtures/registerFleet';
 import { RegisterPage } from './pages/RegisterPage';
 
 // Debian's Chromium; never a downloaded browser. The variable exists to try the skip path.
@@ -19,6 +21,8 @@ const CHROMIUM = process.env.DIPLEDGER_CHROMIUM ?? '/usr/bin/chromium';
 const repoRoot = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..', '..');
 const outputDir = path.join(repoRoot, 'test-output');
 const haveChromium = existsSync(CHROMIUM);
+/** Soonest due first: never checked, overdue, soon, later; withdrawn last. */
+const DUE_ORDER = ['WM-005', 'WM-003', 'WM-004', 'WM-002', 'WM-001', 'WM-006', 'WM-007'];
 if (!haveChromium)
   console.warn(`register e2e skipped: ${CHROMIUM} not found (CI installs it: apt-get install chromium)`);
 
@@ -27,6 +31,7 @@ describe.skipIf(!haveChromium)(
   () => {
     let distDir: string;
     let server: RunningServer;
+    let fleetServer: RunningServer;
     let browser: Browser;
     let page: Page;
     let register: RegisterPage;
@@ -41,6 +46,7 @@ describe.skipIf(!haveChromium)(
         build: { outDir: distDir, emptyOutDir: true },
       });
       server = await startServer({ api: fakeLabApi(), staticDir: distDir });
+      fleetServer = await startServer({ api: fleetApi(2000), staticDir: distDir });
       browser = await chromium.launch({
         executablePath: CHROMIUM,
         args: [
@@ -66,6 +72,7 @@ describe.skipIf(!haveChromium)(
     afterAll(async () => {
       await browser?.close();
       await server?.close();
+      await fleetServer?.close();
       if (distDir) await rm(distDir, { recursive: true, force: true });
     });
 
@@ -75,7 +82,8 @@ describe.skipIf(!haveChromium)(
       expect(cautions).toContain('Maximum input power');
       expect(cautions).toContain('open waveguide');
       expect(cautions).toContain('quality system');
-      expect(await register.assetIds()).toEqual(DEMO_ROWS.map((r) => r.assetId));
+      expect(await register.assetIds()).toEqual(DUE_ORDER);
+      expect(await register.sortOf('Due date')).toBe('ascending');
     });
 
     it('writes bands with units, states and verdicts in words, due in days', async () => {
@@ -85,12 +93,14 @@ describe.skipIf(!haveChromium)(
       expect(await register.cell('WM-004', 'Last verdict')).toContain('Fail');
       expect(await register.cell('WM-002', 'Last verdict')).toContain('Conditional pass');
       expect(await register.cell('WM-005', 'Last verdict')).toBe('Not checked yet');
+      expect(await register.cell('WM-003', 'Last verdict')).toBe('✓ Pass\n2025-01-15');
       expect(await register.cell('WM-003', 'Days to due')).toContain('21 d overdue');
       expect(await register.cell('WM-001', 'Days to due')).toBe('90 d');
       expect(await register.cell('WM-002', 'Days to due')).toBe('12 d, soon');
       expect(await register.cell('WM-007', 'Days to due')).toBe('not in use');
       expect(await register.alignment('WM-003', 'Days to due')).toBe('right');
       expect(await register.summary.innerText()).toMatch(/7 meters\s+2 overdue\s+1 due within 30 d/);
+      expect(await register.alignment('WM-003', 'Band')).toBe('right');
     });
 
     it('filters by asset id or description', async () => {
@@ -106,6 +116,64 @@ describe.skipIf(!haveChromium)(
       expect(await register.emptyMessage.innerText()).toContain('No meter matches');
       await register.filter('');
       await expect.poll(() => register.assetIds()).toHaveLength(DEMO_ROWS.length);
+    });
+
+    it('filters by state, due status, construction, a covered frequency and flags', async () => {
+      await register.filterBy({ state: 'quarantined' });
+      await expect.poll(() => register.assetIds()).toEqual(['WM-004']);
+      expect(await register.summary.innerText()).toContain('Showing 1 of 7 meters');
+      await register.filterBy({ state: 'any', due: 'overdue' });
+      await expect.poll(() => register.assetIds()).toEqual(['WM-003', 'WM-004']);
+      await register.filterBy({ due: 'any', construction: 'coaxial' });
+      await expect.poll(() => register.assetIds()).toEqual(['WM-002', 'WM-001']);
+      await register.filterBy({ construction: 'any', frequency: '13 GHz' });
+      await expect.poll(() => register.assetIds()).toEqual(['WM-004']);
+      await register.filterBy({ frequency: '13' });
+      await expect.poll(() => register.frequencyProblem.innerText()).toContain('"13" has no unit');
+      await expect.poll(() => register.assetIds()).toHaveLength(DEMO_ROWS.length);
+      await register.filterBy({ frequency: '', flaggedOnly: true });
+      await expect.poll(() => register.assetIds()).toEqual(['WM-003', 'WM-006']);
+      expect(await register.cell('WM-006', 'Flags')).toBe('⚑ dip fading\n⚑ Q falling');
+      await register.clearFilters();
+      await expect.poll(() => register.assetIds()).toEqual(DUE_ORDER);
+      expect(await register.summary.innerText()).toMatch(/^7 meters/);
+    });
+
+    it('sorts by a column from the keyboard and says so with aria-sort', async () => {
+      await register.sortBy('Asset id');
+      await expect.poll(() => register.assetIds()).toEqual(DEMO_ROWS.map((r) => r.assetId));
+      expect(await register.sortOf('Asset id')).toBe('ascending');
+      expect(await register.sortOf('Due date')).toBeNull();
+      await register.sortBy('Asset id');
+      await expect.poll(() => register.assetIds()).toEqual(DEMO_ROWS.map((r) => r.assetId).reverse());
+      expect(await register.sortOf('Asset id')).toBe('descending');
+      await register.sortBy('Due date');
+      await expect.poll(() => register.assetIds()).toEqual(DUE_ORDER);
+    });
+
+    it('mounts a window of rows for 2,000 meters and brings later rows on scrolling', async () => {
+      const fleet = new RegisterPage(await browser.newPage({ viewport: { width: 1280, height: 860 } }));
+      try {
+        await fleet.open(fleetServer.launchUrl);
+        expect(await fleet.table.getAttribute('aria-rowcount')).toBe('2001');
+        const first = await fleet.rowIndexes();
+        expect(first[0]).toBe(2);
+        expect(first.length).toBeLessThan(80);
+        await fleet.scrollTo(1);
+        await expect.poll(async () => Math.max(...(await fleet.rowIndexes()))).toBe(2001);
+        expect((await fleet.rowIndexes()).length).toBeLessThan(80);
+        // The page itself does not grow with the fleet: the register scrolls in its own frame.
+        const pageHeight = await fleet.page.evaluate(() => document.documentElement.scrollHeight);
+        expect(pageHeight).toBeLessThan(3000);
+        await fleet.filter(fleetAssetId(1234));
+        await expect.poll(() => fleet.assetIds()).toEqual([fleetAssetId(1234)]);
+        await fleet.filter('');
+        await fleet.scrollTo(0.5);
+        await expect.poll(async () => Math.min(...(await fleet.rowIndexes()))).toBeGreaterThan(900);
+        await fleet.page.screenshot({ path: path.join(outputDir, 'register-fleet.png') });
+      } finally {
+        await fleet.page.close();
+      }
     });
 
     it('loads without console errors and leaves a screenshot', async () => {
