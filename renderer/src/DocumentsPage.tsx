@@ -4,6 +4,7 @@
 import { useEffect, useState } from 'react';
 import type { LabApi } from '../../app/api/contract';
 import type { FindingStatus, VerifyReport } from '../../app/api/contract-documents';
+import { IssueCertificates } from './LongWork';
 import { href } from './routes';
 import { messageOf, useLoad } from './useLoad';
 
@@ -28,7 +29,7 @@ type Check =
   | { kind: 'failed'; name: string; message: string };
 
 export function DocumentsPage({ api }: { api: LabApi }) {
-  const [load] = useLoad(() => api.listDocuments({}), [api]);
+  const [load, reload] = useLoad(() => api.listDocuments({}), [api]);
   const [check, setCheck] = useState<Check>({ kind: 'idle' });
   const [over, setOver] = useState(false);
   useEffect(() => {
@@ -93,6 +94,7 @@ export function DocumentsPage({ api }: { api: LabApi }) {
 
       <section aria-labelledby="issued-title">
         <h2 id="issued-title">Issued</h2>
+        <IssueCertificates api={api} onIssued={reload} />
         {load.kind === 'loading' && <p className="status">Loading the documents…</p>}
         {load.kind === 'failed' && (
           <p className="status error" role="alert">

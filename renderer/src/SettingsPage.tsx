@@ -5,6 +5,7 @@ import { useEffect, useId, useState } from 'react';
 import type { LabApi, LabSettings } from '../../app/api/contract';
 import type { FieldIssue } from '../../app/api/errors';
 import type { DecisionRule } from '../../app/engine/model';
+import { ImportHistory, IntegrityCheck } from './LongWork';
 import { PeopleSection } from './PeopleSection';
 import { messageOf, useLoad } from './useLoad';
 
@@ -27,6 +28,15 @@ export function SettingsPage({ api }: { api: LabApi }) {
       )}
       {load.kind === 'ready' && <SettingsForm api={api} initial={load.value} />}
       <PeopleSection api={api} />
+      <section className="step people" aria-labelledby="labfile-h">
+        <h2 id="labfile-h" className="legend-like">
+          History and the lab file
+        </h2>
+        <div className="people-forms">
+          <ImportHistory api={api} />
+          <IntegrityCheck api={api} />
+        </div>
+      </section>
     </div>
   );
 }
