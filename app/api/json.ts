@@ -1,5 +1,7 @@
 // JSON that keeps Infinity and NaN (a Type B input with infinite degrees of freedom is common):
 // non-finite numbers travel as the strings "Infinity", "-Infinity" and "NaN".
+import { PACK_MARK, unpackPointResult } from './point-pack';
+
 export function encodeJson(value: unknown, space?: number): string {
   // The same text a replacer turning non-finite numbers into strings gives, but a replacer puts
   // JSON.stringify on its slow path (a bulk import encodes every point's result), so the
@@ -22,8 +24,11 @@ function nonFiniteAsText(v: unknown, key: string): unknown {
   return out;
 }
 
+/** The value of a JSON text; a point result stored packed (app/api/point-pack.ts) reads as the
+ * result it holds. */
 export function decodeJson(text: string): unknown {
-  return JSON.parse(text, (_key, v: unknown) =>
+  const value: unknown = JSON.parse(text, (_key, v: unknown) =>
     v === 'Infinity' ? Infinity : v === '-Infinity' ? -Infinity : v === 'NaN' ? NaN : v,
   );
+  return text.startsWith(PACK_MARK) ? (unpackPointResult(value) ?? value) : value;
 }

@@ -1,12 +1,16 @@
 // The history group: turns a meter's stored checks into drift fits, steps, health flags, a
 // suggested interval, and the fit-for-use answer at a frequency. Read-only; dates become years
 // here (the engine has no calendar), with the newest check as time zero.
-import { addDays, formatISO, parseISO } from 'date-fns';
+// Per-function imports: the date-fns barrel costs about half a second of CLI start-up.
+import { addDays } from 'date-fns/addDays';
+import { formatISO } from 'date-fns/formatISO';
+import { parseISO } from 'date-fns/parseISO';
 import { coverageFactor, formatFrequency, parseFrequencyHz } from '../engine';
 import {
   analyseDrift,
   analyseHealth,
   predict,
+  predictor,
   projectedExit,
   STEP_COVERAGE,
   DIP_FADE_FRACTION,
@@ -30,6 +34,7 @@ import { registerRowOfMeter } from '../../db/queries/summaries';
 import {
   certificatesUsed,
   meterHistory,
+  pointResults,
   type HistoryCheckRow,
   type HistoryPointRow,
 } from '../../db/queries/history';
@@ -48,7 +53,7 @@ import type {
 import type { OpGroup, ServiceContext } from './context';
 import { LabError, describe } from './errors';
 import { daysBetween } from './support';
-import { cachedAttributeRecords, cachedRegisterFlags } from './summaries';
+import { cachedAttributeRecords, cachedRegisterFlags, type FlagSummary, type FlagWord } from './summaries';
 
 const DAYS_PER_YEAR = 365.25;
 /** The band the lab's coverage is judged over (the product's range). */
@@ -72,10 +77,29 @@ interface Timeline {
 
 function timeline(epoch: string): Timeline {
   const e = parseISO(epoch);
+  // A history asks for the same few dates many times (each check's date, the band's samples):
+  // the calendar arithmetic is done once per date.
+  const yearsOf = new Map<string, number>();
+  const dateOf = new Map<number, string>();
   return {
     epoch,
-    years: (date) => daysBetween(epoch, date) / DAYS_PER_YEAR,
-    date: (t) => formatISO(addDays(e, Math.round(t * DAYS_PER_YEAR)), { representation: 'date' }),
+    years: (date) => {
+      let y = yearsOf.get(date);
+      if (y === undefined) {
+        y = daysBetween(epoch, date) / DAYS_PER_YEAR;
+        yearsOf.set(date, y);
+      }
+      return y;
+    },
+    date: (t) => {
+      const days = Math.round(t * DAYS_PER_YEAR);
+      let d = dateOf.get(days);
+      if (d === undefined) {
+        d = formatISO(addDays(e, days), { representation: 'date' });
+        dateOf.set(days, d);
+      }
+      return d;
+    },
   };
 }
 
@@ -88,9 +112,9 @@ function toHistoryCheck(c: HistoryCheckRow, tl: Timeline): HistoryCheck {
     points: c.points.map((p) => ({
       frequencyHz: p.referenceHz,
       phase: p.phase,
-      errorPpm: p.result.errorPpm,
-      uPpm: ppmOf(p.result.budget.combinedHz, p.referenceHz),
-      tolerancePpm: ppmOf(p.result.decision.toleranceHz, p.referenceHz),
+      errorPpm: p.errorPpm,
+      uPpm: ppmOf(p.combinedHz, p.referenceHz),
+      tolerancePpm: ppmOf(p.toleranceHz, p.referenceHz),
     })),
   };
 }
@@ -100,7 +124,7 @@ function effectivePoints(c: HistoryCheckRow): HistoryPointRow[] {
   return c.points.filter((p) => p.phase === (c.adjusted ? 'as-left' : 'as-found'));
 }
 
-const outOfTolerance = (p: HistoryPointRow) => Math.abs(p.result.errorHz) > p.result.decision.toleranceHz;
+const outOfTolerance = (p: HistoryPointRow) => Math.abs(p.errorHz) > p.toleranceHz;
 
 /** A group of similar meters for the attributes method: same construction and band family. */
 export function bandFamily(m: Pick<Meter, 'construction' | 'minHz' | 'maxHz'>): string {
@@ -116,8 +140,12 @@ interface MeterAnalysis {
   tl: Timeline | null;
   drift: DriftAnalysis | null;
   health: HealthAnalysis | null;
-  frequencies: FrequencyTrend[];
+  /** Projected exit (years) of each of drift.frequencies, null where none. */
+  exits: (number | null)[];
   projectedExitDate: string | null;
+  /** Whether that exit falls on or before the due date (the drift-exit flag is then a warning
+   * whatever the day). */
+  exitBeforeDue: boolean;
   flags: HistoryFlag[];
   steps: StepReport[];
 }
@@ -154,8 +182,9 @@ function analyseMeter(ctx: ServiceContext, rec: MeterRecord, register: RegisterR
       tl: null,
       drift: null,
       health: null,
-      frequencies: [],
+      exits: [],
       projectedExitDate: null,
+      exitBeforeDue: false,
       flags: [],
       steps: [],
     };
@@ -172,59 +201,11 @@ function analyseMeter(ctx: ServiceContext, rec: MeterRecord, register: RegisterR
     })),
     m.minDipDb,
   );
-  const dueYears = register.dueDate ? tl.years(register.dueDate) : m.intervalMonths / 12;
-  const frequencies: FrequencyTrend[] = drift.frequencies.map((f) => {
-    const fit = f.fit;
-    const exit = fit
-      ? projectedExit(fit, 0, f.tolerancePpm, { uNew: f.uNewPpm, horizon: EXIT_HORIZON_YEARS })
-      : null;
-    const atDue = fit ? predict(fit, dueYears, 0.95, f.uNewPpm) : null;
-    const segmentStart = drift.segmentStartYears ?? 0;
-    return {
-      frequencyHz: f.frequencyHz,
-      tolerancePpm: f.tolerancePpm,
-      history: f.observations.map((o) => ({
-        date: tl.date(o.tYears),
-        phase: o.phase,
-        errorPpm: o.errorPpm,
-        uPpm: o.uPpm,
-        used: o.segment === drift.currentSegment,
-      })),
-      fit: fit && {
-        points: fit.n,
-        dof: fit.dof,
-        interceptPpm: fit.intercept,
-        slopePpmPerYear: fit.slope,
-        uInterceptPpm: fit.uIntercept,
-        uSlopePpmPerYear: fit.uSlope,
-        residualSdPpm: fit.residualSd,
-        birgeRatio: fit.birgeRatio,
-        fromDate: tl.date(segmentStart),
-      },
-      atDue:
-        fit && atDue
-          ? {
-              date: tl.date(dueYears),
-              predictedPpm: atDue.value,
-              halfWidthPpm: atDue.halfWidth,
-              probabilityOfConformity: predictedConformity(
-                { frequencyHz: f.frequencyHz, fit, tolerancePpm: f.tolerancePpm, uNewPpm: f.uNewPpm },
-                dueYears,
-              ),
-            }
-          : null,
-      projectedExitDate: exit === null ? null : tl.date(exit),
-      band: fit
-        ? bandSamples(
-            segmentStart,
-            Math.max(dueYears, exit === null ? 0 : Math.min(exit, dueYears + 3)) + 0.25,
-            (x) => predict(fit, x, 0.95, f.uNewPpm),
-          ).map((b) => ({ date: tl.date(b.x), predictedPpm: b.value, halfWidthPpm: b.halfWidth }))
-        : [],
-    };
-  });
-  const exits = frequencies.map((f) => f.projectedExitDate).filter((d): d is string => d !== null);
-  const projectedExitDate = exits.length ? (exits.sort()[0] ?? null) : null;
+  const exits = drift.frequencies.map((f) =>
+    f.fit ? projectedExit(f.fit, 0, f.tolerancePpm, { uNew: f.uNewPpm, horizon: EXIT_HORIZON_YEARS }) : null,
+  );
+  const exitDates = exits.filter((x): x is number => x !== null).map((x) => tl.date(x));
+  const projectedExitDate = exitDates.length ? (exitDates.sort()[0] ?? null) : null;
 
   const steps: StepReport[] = drift.steps
     .filter((s) => s.isStep || s.flaggedCount > 0)
@@ -261,15 +242,14 @@ function analyseMeter(ctx: ServiceContext, rec: MeterRecord, register: RegisterR
       });
     }
   }
+  const exitBeforeDue =
+    projectedExitDate !== null && register.dueDate !== null && projectedExitDate <= register.dueDate;
   if (projectedExitDate) {
-    const beforeDue = register.dueDate !== null && projectedExitDate <= register.dueDate;
-    // Within a few years is worth the coordinator's attention in the due list.
-    const soon = tl.years(projectedExitDate) <= tl.years(ctx.clock.today()) + EXIT_WARNING_YEARS;
     flags.push({
       code: 'drift-exit',
-      severity: beforeDue || soon ? 'warning' : 'info',
+      severity: driftExitSeverity(tl, projectedExitDate, exitBeforeDue, ctx.clock.today()),
       date: projectedExitDate,
-      message: `Drift: the 95 % prediction band of a check reaches the tolerance on ${projectedExitDate}${beforeDue ? `, before the due date ${register.dueDate ?? ''}` : ''}.`,
+      message: `Drift: the 95 % prediction band of a check reaches the tolerance on ${projectedExitDate}${exitBeforeDue ? `, before the due date ${register.dueDate ?? ''}` : ''}.`,
       short: `drift: exits ${projectedExitDate.slice(0, 7)}`,
     });
   }
@@ -345,7 +325,78 @@ function analyseMeter(ctx: ServiceContext, rec: MeterRecord, register: RegisterR
       short: 'few checks',
     });
   }
-  return { rec, register, checks, tl, drift, health, frequencies, projectedExitDate, flags, steps };
+  return { rec, register, checks, tl, drift, health, exits, projectedExitDate, exitBeforeDue, flags, steps };
+}
+
+/** The drift-exit flag's severity: the one thing in a meter's flags that changes with the day
+ * (a projected exit within a few years of today is worth the coordinator's attention in the due
+ * list; one before the due date always is). */
+function driftExitSeverity(
+  tl: Timeline,
+  exitDate: string,
+  beforeDue: boolean,
+  today: string,
+): HistoryFlag['severity'] {
+  const soon = tl.years(exitDate) <= tl.years(today) + EXIT_WARNING_YEARS;
+  return beforeDue || soon ? 'warning' : 'info';
+}
+
+/** The drift chart of each check frequency: its history, fit, prediction at the due date, exit
+ * and prediction band (the trend page only; the register needs none of it). */
+function frequencyTrends(a: MeterAnalysis): FrequencyTrend[] {
+  const { tl, drift, register } = a;
+  if (!tl || !drift) return [];
+  const m = a.rec.meter;
+  const dueYears = register.dueDate ? tl.years(register.dueDate) : m.intervalMonths / 12;
+  const frequencies: FrequencyTrend[] = drift.frequencies.map((f, i) => {
+    const fit = f.fit;
+    const exit = a.exits[i] ?? null;
+    const atDue = fit ? predict(fit, dueYears, 0.95, f.uNewPpm) : null;
+    const segmentStart = drift.segmentStartYears ?? 0;
+    return {
+      frequencyHz: f.frequencyHz,
+      tolerancePpm: f.tolerancePpm,
+      history: f.observations.map((o) => ({
+        date: tl.date(o.tYears),
+        phase: o.phase,
+        errorPpm: o.errorPpm,
+        uPpm: o.uPpm,
+        used: o.segment === drift.currentSegment,
+      })),
+      fit: fit && {
+        points: fit.n,
+        dof: fit.dof,
+        interceptPpm: fit.intercept,
+        slopePpmPerYear: fit.slope,
+        uInterceptPpm: fit.uIntercept,
+        uSlopePpmPerYear: fit.uSlope,
+        residualSdPpm: fit.residualSd,
+        birgeRatio: fit.birgeRatio,
+        fromDate: tl.date(segmentStart),
+      },
+      atDue:
+        fit && atDue
+          ? {
+              date: tl.date(dueYears),
+              predictedPpm: atDue.value,
+              halfWidthPpm: atDue.halfWidth,
+              probabilityOfConformity: predictedConformity(
+                { frequencyHz: f.frequencyHz, fit, tolerancePpm: f.tolerancePpm, uNewPpm: f.uNewPpm },
+                dueYears,
+              ),
+            }
+          : null,
+      projectedExitDate: exit === null ? null : tl.date(exit),
+      band: fit
+        ? bandSamples(
+            segmentStart,
+            Math.max(dueYears, exit === null ? 0 : Math.min(exit, dueYears + 3)) + 0.25,
+            predictor(fit, 0.95, f.uNewPpm),
+          ).map((b) => ({ date: tl.date(b.x), predictedPpm: b.value, halfWidthPpm: b.halfWidth }))
+        : [],
+    };
+  });
+  return frequencies;
 }
 
 function attributeRecords(
@@ -370,9 +421,7 @@ function suggest(ctx: ServiceContext, a: MeterAnalysis, settings: LabSettings): 
 /** Largest |error| / tolerance over a check's as-found points (null without any). */
 function asFoundUsedFraction(c: HistoryCheckRow): number | null {
   const found = c.points.filter((p) => p.phase === 'as-found');
-  return found.length
-    ? Math.max(...found.map((p) => Math.abs(p.result.errorHz) / p.result.decision.toleranceHz))
-    : null;
+  return found.length ? Math.max(...found.map((p) => Math.abs(p.errorHz) / p.toleranceHz)) : null;
 }
 
 function suggestByMethod(ctx: ServiceContext, a: MeterAnalysis, settings: LabSettings): IntervalSuggestion {
@@ -447,7 +496,7 @@ function trendReport(ctx: ServiceContext, a: MeterAnalysis, settings: LabSetting
     dueDate: a.register.dueDate,
     segmentFromDate:
       tl && a.drift?.segmentStartYears !== null && a.drift ? tl.date(a.drift.segmentStartYears ?? 0) : null,
-    frequencies: a.frequencies,
+    frequencies: frequencyTrends(a),
     pooled: pooled && {
       driftPpmPerYear: pooled.driftPpmPerYear,
       uDriftPpmPerYear: pooled.uDriftPpmPerYear,
@@ -484,13 +533,19 @@ function trendReport(ctx: ServiceContext, a: MeterAnalysis, settings: LabSetting
 }
 
 /** Linear interpolation along the band of the newest check's errors at `hz`. */
-function correctionAt(points: HistoryPointRow[], hz: number) {
+function correctionAt(ctx: ServiceContext, points: HistoryPointRow[], hz: number) {
   const sorted = [...points].sort((a, b) => a.referenceHz - b.referenceHz);
+  // The reference source's line of each budget is not among the numbers history reads: the
+  // stored results of these few points are read whole.
+  const results = pointResults(
+    ctx.db,
+    points.map((p) => p.pointId),
+  );
   const ppm = (p: HistoryPointRow) => ({
-    e: p.result.errorPpm,
-    u: ppmOf(p.result.budget.combinedHz, p.referenceHz),
+    e: p.errorPpm,
+    u: ppmOf(p.combinedHz, p.referenceHz),
     uRef: ppmOf(
-      p.result.budget.contributions.find((c) => c.key === 'reference')?.contributionHz ?? 0,
+      results.get(p.pointId)?.budget.contributions.find((c) => c.key === 'reference')?.contributionHz ?? 0,
       p.referenceHz,
     ),
   });
@@ -569,7 +624,7 @@ function useAnswer(ctx: ServiceContext, a: MeterAnalysis, hz: number): UseAnswer
     if (bad.length)
       reasons.push({
         code: 'out-of-tolerance',
-        message: `At the last check (${newest.date}) ${bad.length} point(s) were out of tolerance, e.g. ${formatFrequency(bad[0]?.referenceHz ?? 0, 6)} at ${bad[0]?.result.errorPpm.toFixed(0) ?? ''} ppm.`,
+        message: `At the last check (${newest.date}) ${bad.length} point(s) were out of tolerance, e.g. ${formatFrequency(bad[0]?.referenceHz ?? 0, 6)} at ${bad[0]?.errorPpm.toFixed(0) ?? ''} ppm.`,
       });
     for (const c of certificatesUsed(ctx.db, newest.checkId)) {
       if (c.dueOn < newest.date || c.calibratedOn > newest.date)
@@ -585,7 +640,7 @@ function useAnswer(ctx: ServiceContext, a: MeterAnalysis, hz: number): UseAnswer
       else if (f.severity !== 'info') warnings.push(f.message);
     }
     const inBand = hz >= m.minHz && hz <= m.maxHz;
-    const c = inBand ? correctionAt(eff, hz) : null;
+    const c = inBand ? correctionAt(ctx, eff, hz) : null;
     if (c) {
       // Drift since the last check, from the fits at the neighbouring frequencies or the pooled model.
       const dt = daysBetween(newest.date, today) / DAYS_PER_YEAR;
@@ -674,13 +729,38 @@ export function registerFlags(ctx: ServiceContext, row: RegisterRow): string[] {
 
 /** Register flag words of many rows at once, from the per-meter summaries where current. */
 export function registerFlagsAll(ctx: ServiceContext, rows: RegisterRow[]): string[][] {
-  return cachedRegisterFlags(ctx, rows, (_meterId, row) => {
-    const rec = getMeterByAsset(ctx.db, row.assetId);
-    if (!rec) return [];
-    return analyseMeter(ctx, rec, row)
-      .flags.filter((f) => f.severity !== 'info')
-      .map((f) => f.short);
-  });
+  const today = ctx.clock.today();
+  return cachedRegisterFlags(
+    ctx,
+    rows,
+    (_meterId, row) => {
+      const rec = getMeterByAsset(ctx.db, row.assetId);
+      return rec ? flagSummary(analyseMeter(ctx, rec, row)) : { epoch: null, words: [] };
+    },
+    (summary) => registerWords(summary, today),
+  );
+}
+
+/** The flags of an analysis that the register shows on some day (warnings and stops), without
+ * the day: the drift-exit word keeps its date unless it is a warning whatever the day. */
+function flagSummary(a: MeterAnalysis): FlagSummary {
+  const words: FlagWord[] = [];
+  for (const f of a.flags) {
+    if (f.code === 'drift-exit' && !a.exitBeforeDue && f.date !== null)
+      words.push({ short: f.short, exitDate: f.date });
+    else if (f.severity !== 'info') words.push({ short: f.short });
+  }
+  return { epoch: a.tl?.epoch ?? null, words };
+}
+
+/** The register's words of a flag summary on `today` (analyseMeter's severities on that day). */
+function registerWords(summary: FlagSummary, today: string): string[] {
+  const tl = summary.epoch === null ? null : timeline(summary.epoch);
+  return summary.words
+    .filter(
+      (w) => w.exitDate === undefined || (tl && driftExitSeverity(tl, w.exitDate, false, today) !== 'info'),
+    )
+    .map((w) => w.short);
 }
 
 export const historyOps: OpGroup<keyof HistoryApi> = (ctx) => ({

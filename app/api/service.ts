@@ -1,8 +1,8 @@
 // The LabApi implemented over a lab file. Validates every input (shape with zod, meaning
 // against the records), computes with the engine, and writes each operation in one
 // transaction: a refusal writes nothing.
-import { parse as parseCsv } from 'csv-parse/sync';
 import { stringify as stringifyCsv } from 'csv-stringify/sync';
+import { CSV_COLUMNS, csvToDocuments } from './import-csv';
 import {
   checkInBand,
   formatFrequency,
@@ -492,13 +492,15 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
     };
   }
 
-  function writeCheck(c: PreparedCheck, action: string): number {
+  /** `settings`: the lab's, when the caller already read them (a bulk import, once per file). */
+  function writeCheck(c: PreparedCheck, action: string, settings?: LabSettings): number {
     const at = clock.now();
     const performer =
       c.performer ??
       findPersonByName(db, c.doc.performer) ??
       insertPerson(db, { name: c.doc.performer, role: 'technician' }, at);
-    const checkId = insertCheck(db, revisionRows(c, performer.id, lab().decisionRule), at);
+    const rule = (settings ?? lab()).decisionRule;
+    const checkId = insertCheck(db, revisionRows(c, performer.id, rule), at);
     insertSweeps(db, checkId, sweepRows(c));
     appendAudit(db, {
       at,
@@ -899,7 +901,7 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
       db.transaction(() => {
         for (const d of docs) {
           const p = prepareCheckAtLine(d, lookups);
-          writeCheck(p, 'import');
+          writeCheck(p, 'import', lookups.settings);
           result.checksImported += 1;
           result.pointsImported += p.points.length;
         }
@@ -993,147 +995,5 @@ function asyncApi(sync: SyncLabApi): LabApi {
   return out as unknown as LabApi;
 }
 
-/** Columns of the history CSV (RFC 4180), one row per reading. Documented in docs/exchange.md. */
-export const CSV_COLUMNS = [
-  'meter',
-  'date',
-  'performer',
-  'standards',
-  'method',
-  'temperature_c',
-  'u_temperature_c',
-  'pressure_hpa',
-  'u_pressure_hpa',
-  'humidity_pct',
-  'u_humidity_pct',
-  'adjusted',
-  'point',
-  'phase',
-  'reference_hz',
-  'standard',
-  'reading',
-  'reading_unit',
-  'direction',
-  'dip_depth_db',
-  'remarks',
-] as const;
-
-type CsvRow = Record<(typeof CSV_COLUMNS)[number], string>;
-
-/** Groups CSV rows into check documents (meter + date), each with its line range. */
-export function csvToDocuments(
-  text: string,
-): { doc: { meter: string } & Record<string, unknown>; lines: string }[] {
-  let records: { record: CsvRow; line: number }[];
-  try {
-    // Rows as arrays, named by the header here: csv-parse's own naming (columns: true) takes
-    // about twice as long on a large import for the same records.
-    const parsed = parseCsv(text, {
-      skip_empty_lines: true,
-      trim: true,
-      info: true,
-      bom: true,
-    }) as unknown as { record: string[]; info: { lines: number } }[];
-    const names = parsed[0]?.record ?? [];
-    records = parsed.slice(1).map((p) => {
-      const record = {} as Record<string, string>;
-      names.forEach((name, i) => {
-        record[name] = p.record[i] as string;
-      });
-      return { record: record as CsvRow, line: p.info.lines };
-    });
-  } catch (e) {
-    // Worded as csv-parse words it when it names the columns itself, as before.
-    const message = (e instanceof Error ? e.message : String(e)).replace(
-      /^Invalid Record Length: expect (\d+),/,
-      'Invalid Record Length: columns length is $1,',
-    );
-    throw LabError.field('csv', undefined, 'a CSV file (RFC 4180)', `csv: ${message}`);
-  }
-  const header = text.replace(/^\uFEFF/, '').split(/\r?\n/, 1)[0] ?? '';
-  const cols = header.split(',').map((c) => c.trim().replace(/^"|"$/g, ''));
-  const missing = CSV_COLUMNS.filter(
-    (c) =>
-      !['remarks', 'dip_depth_db', 'method', 'u_temperature_c', 'u_pressure_hpa', 'u_humidity_pct'].includes(
-        c,
-      ) && !cols.includes(c),
-  );
-  if (missing.length) {
-    throw LabError.field(
-      'csv header',
-      header,
-      `the columns ${CSV_COLUMNS.join(', ')}`,
-      `csv header: missing column(s) ${missing.join(', ')}`,
-    );
-  }
-  const groups = new Map<string, { rows: typeof records }>();
-  for (const r of records) {
-    const key = `${r.record.meter}\u0000${r.record.date}`;
-    const g = groups.get(key) ?? { rows: [] };
-    g.rows.push(r);
-    groups.set(key, g);
-  }
-  const num = (s: string | undefined): number | string | undefined => {
-    if (s === undefined || s === '') return undefined;
-    const n = Number(s);
-    return Number.isFinite(n) ? n : s;
-  };
-  const out: { doc: { meter: string } & Record<string, unknown>; lines: string }[] = [];
-  for (const g of groups.values()) {
-    const first = g.rows[0];
-    if (!first) continue;
-    const f = first.record;
-    const lines = `${first.line}-${g.rows[g.rows.length - 1]?.line ?? first.line}`;
-    const points = new Map<
-      string,
-      {
-        phase: string;
-        reference: string;
-        standard: string;
-        readings: { value: string | number; direction: string }[];
-        dipDepthDb?: number | string;
-      }
-    >();
-    for (const { record: r } of g.rows) {
-      const key = r.point;
-      const p = points.get(key) ?? {
-        phase: r.phase,
-        reference: `${r.reference_hz} Hz`,
-        standard: r.standard,
-        readings: [],
-        ...(r.dip_depth_db ? { dipDepthDb: num(r.dip_depth_db) } : {}),
-      };
-      p.readings.push({
-        value: r.reading_unit === 'Hz' ? `${r.reading} Hz` : (num(r.reading) ?? r.reading),
-        direction: r.direction,
-      });
-      points.set(key, p);
-    }
-    out.push({
-      lines,
-      doc: {
-        format: 'dipledger.check/1',
-        meter: f.meter,
-        date: f.date,
-        performer: f.performer,
-        standards: f.standards
-          .split(';')
-          .map((s) => s.trim())
-          .filter(Boolean),
-        method: f.method || 'tune-to-dip',
-        conditions: {
-          temperatureC: num(f.temperature_c),
-          temperatureUncertaintyC: num(f.u_temperature_c),
-          pressureHpa: num(f.pressure_hpa),
-          pressureUncertaintyHpa: num(f.u_pressure_hpa),
-          humidityPct: num(f.humidity_pct),
-          humidityUncertaintyPct: num(f.u_humidity_pct),
-        },
-        adjusted: /^(yes|true|1)$/i.test(f.adjusted),
-        remarks: f.remarks ?? '',
-        points: [...points.values()],
-      },
-    });
-  }
-  return out;
-}
+/** The history CSV: its columns and its rows as check documents (app/api/import-csv.ts). */
+export { CSV_COLUMNS, csvToDocuments };

@@ -20,19 +20,62 @@ export interface ContributionInput {
   dof: number;
 }
 
-function requireFinite(value: number, what: string): void {
-  if (!Number.isFinite(value)) throw new Error(`${what} must be a finite number (got ${String(value)})`);
+/** The message is put together only when it is needed: this runs for every budget line. */
+function requireFinite(value: number, key: string, what: string): void {
+  if (!Number.isFinite(value))
+    throw new Error(`${key}: ${what} must be a finite number (got ${String(value)})`);
+}
+
+function checkLine(key: string, standardUncertainty: number, sensitivity: number, dof: number): void {
+  requireFinite(standardUncertainty, key, 'standard uncertainty');
+  requireFinite(sensitivity, key, 'sensitivity');
+  if (standardUncertainty < 0) throw new Error(`${key}: standard uncertainty must not be negative`);
+  if (Number.isNaN(dof) || dof <= 0)
+    throw new Error(`${key}: degrees of freedom must be positive (got ${dof})`);
+}
+
+// The lines are written out key by key, in the order the spreads ({ ...input, contributionHz })
+// gave them, for the shapes the engine passes: a spread over its dozen differently shaped lines
+// fell to V8's slow generic path, about half the time of evaluating a point in a bulk import
+// (issue 8). Any other shape still goes through the spread. The key order is part of the stored
+// result's text, hence the care.
+const INPUT_KEYS = [
+  'key',
+  'label',
+  'type',
+  'distribution',
+  'unit',
+  'standardUncertainty',
+  'sensitivity',
+  'dof',
+];
+const IDENTITY_KEYS = ['key', 'label', 'unit', 'sensitivity'];
+
+function hasKeys(o: object, keys: readonly string[]): boolean {
+  let i = 0;
+  for (const k in o) {
+    if (!Object.prototype.hasOwnProperty.call(o, k) || k !== keys[i]) return false;
+    i++;
+  }
+  return i === keys.length;
 }
 
 /** A budget line with contributionHz = |c| u filled in. */
 export function makeContribution(input: ContributionInput): Contribution {
-  requireFinite(input.standardUncertainty, `${input.key}: standard uncertainty`);
-  requireFinite(input.sensitivity, `${input.key}: sensitivity`);
-  if (input.standardUncertainty < 0)
-    throw new Error(`${input.key}: standard uncertainty must not be negative`);
-  if (Number.isNaN(input.dof) || input.dof <= 0)
-    throw new Error(`${input.key}: degrees of freedom must be positive (got ${input.dof})`);
-  return { ...input, contributionHz: Math.abs(input.sensitivity) * input.standardUncertainty };
+  checkLine(input.key, input.standardUncertainty, input.sensitivity, input.dof);
+  const contributionHz = Math.abs(input.sensitivity) * input.standardUncertainty;
+  if (!hasKeys(input, INPUT_KEYS)) return { ...input, contributionHz };
+  return {
+    key: input.key,
+    label: input.label,
+    type: input.type,
+    distribution: input.distribution,
+    unit: input.unit,
+    standardUncertainty: input.standardUncertainty,
+    sensitivity: input.sensitivity,
+    dof: input.dof,
+    contributionHz,
+  };
 }
 
 interface LineIdentity {
@@ -42,29 +85,41 @@ interface LineIdentity {
   sensitivity: number;
 }
 
+/** makeContribution({ ...line, type, distribution, standardUncertainty, dof }). */
+function lineOf(
+  line: LineIdentity,
+  type: 'A' | 'B',
+  distribution: Distribution,
+  standardUncertainty: number,
+  dof: number,
+): Contribution {
+  if (!hasKeys(line, IDENTITY_KEYS))
+    return makeContribution({ ...line, type, distribution, standardUncertainty, dof });
+  checkLine(line.key, standardUncertainty, line.sensitivity, dof);
+  return {
+    key: line.key,
+    label: line.label,
+    unit: line.unit,
+    sensitivity: line.sensitivity,
+    type,
+    distribution,
+    standardUncertainty,
+    dof,
+    contributionHz: Math.abs(line.sensitivity) * standardUncertainty,
+  };
+}
+
 /** Type A from n observations with experimental standard deviation s: u = s/sqrt(n), nu = n - 1. */
 export function typeA(line: LineIdentity, standardDeviation: number, count: number): Contribution {
   if (!Number.isInteger(count) || count < 2)
     throw new Error(`${line.key}: a Type A evaluation needs at least 2 observations (got ${count})`);
-  return makeContribution({
-    ...line,
-    type: 'A',
-    distribution: 't',
-    standardUncertainty: standardDeviation / Math.sqrt(count),
-    dof: count - 1,
-  });
+  return lineOf(line, 'A', 't', standardDeviation / Math.sqrt(count), count - 1);
 }
 
 /** Type B, rectangular of half-width a: u = a/sqrt(3), taken as exactly known (nu = Infinity). */
 export function rectangular(line: LineIdentity, halfWidth: number): Contribution {
-  requireFinite(halfWidth, `${line.key}: half-width`);
-  return makeContribution({
-    ...line,
-    type: 'B',
-    distribution: 'rectangular',
-    standardUncertainty: Math.abs(halfWidth) / Math.sqrt(3),
-    dof: Infinity,
-  });
+  requireFinite(halfWidth, line.key, 'half-width');
+  return lineOf(line, 'B', 'rectangular', Math.abs(halfWidth) / Math.sqrt(3), Infinity);
 }
 
 /** Type B from a certificate's expanded uncertainty U with coverage factor k: u = U/k. */
@@ -74,16 +129,10 @@ export function normalFromCertificate(
   k: number,
   dof = Infinity,
 ): Contribution {
-  requireFinite(expandedUncertainty, `${line.key}: expanded uncertainty`);
+  requireFinite(expandedUncertainty, line.key, 'expanded uncertainty');
   if (!(k > 0) || !Number.isFinite(k))
     throw new Error(`${line.key}: coverage factor must be a positive number (got ${k})`);
-  return makeContribution({
-    ...line,
-    type: 'B',
-    distribution: 'normal',
-    standardUncertainty: Math.abs(expandedUncertainty) / k,
-    dof,
-  });
+  return lineOf(line, 'B', 'normal', Math.abs(expandedUncertainty) / k, dof);
 }
 
 /**
@@ -99,7 +148,7 @@ export function combine(
   let denominator = 0;
   let smallestDof = Infinity;
   for (const line of contributions) {
-    requireFinite(line.contributionHz, `${line.key}: contribution`);
+    requireFinite(line.contributionHz, line.key, 'contribution');
     const ci = line.contributionHz;
     variance += ci * ci;
     if (ci > 0 && Number.isFinite(line.dof)) {

@@ -71,34 +71,38 @@ export function fitLine(points: readonly FitPoint[], scale: FitScale = 'residual
   });
   for (const p of points)
     if (!Number.isFinite(p.x) || !Number.isFinite(p.y)) throw new Error('fit points must be finite');
+  // Plain loops: a meter's step tests fit thousands of short lines (the sums are the same).
   let sw = 0;
   let swx = 0;
   let swy = 0;
-  points.forEach((p, i) => {
+  for (let i = 0; i < n; i++) {
+    const p = points[i] as FitPoint;
     const wi = w[i] as number;
     sw += wi;
     swx += wi * p.x;
     swy += wi * p.y;
-  });
+  }
   const xMean = swx / sw;
   const yMean = swy / sw;
   let sxx = 0;
   let sxy = 0;
-  points.forEach((p, i) => {
+  for (let i = 0; i < n; i++) {
+    const p = points[i] as FitPoint;
     const wi = w[i] as number;
     sxx += wi * (p.x - xMean) ** 2;
     sxy += wi * (p.x - xMean) * (p.y - yMean);
-  });
+  }
   if (!(sxx > 0)) throw new Error('a straight-line fit needs at least two distinct x values');
   const slope = sxy / sxx;
   const intercept = yMean - slope * xMean;
   let ssr = 0;
   let chi2 = 0;
-  points.forEach((p, i) => {
+  for (let i = 0; i < n; i++) {
+    const p = points[i] as FitPoint;
     const r = p.y - (intercept + slope * p.x);
     ssr += r * r;
     chi2 += (w[i] as number) * r * r;
-  });
+  }
   const dof = n - 2;
   const s2 = chi2 / dof;
   const unitVariance = scale === 'residual-or-stated' && weighted ? Math.max(s2, 1) : s2;
@@ -135,23 +139,31 @@ export interface Prediction {
 /** e-Handbook 4.5.1.2 prediction interval of one new observation at x0. `uNew` is the new
  * observation's own standard uncertainty for a weighted fit (its weight), ignored otherwise. */
 export function predict(fit: LineFit, x0: number, coverage = 0.95, uNew?: number): Prediction {
+  return predictor(fit, coverage, uNew)(x0);
+}
+
+/** The prediction of `predict` as a function of x0, with what does not depend on x0 (the t
+ * quantile above all) worked out once: a band or a projected exit asks at hundreds of x0. */
+export function predictor(fit: LineFit, coverage = 0.95, uNew?: number): (x0: number) => Prediction {
   if (!(coverage > 0 && coverage < 1)) throw new Error(`coverage must lie between 0 and 1 (got ${coverage})`);
-  const varMean = fit.unitVariance * (1 / fit.sumWeights + (x0 - fit.xMean) ** 2 / fit.sxx);
   // A new observation weighs 1/uNew^2 in a weighted fit (the mean weight if uNew is not given).
   const varNew = !fit.weighted
     ? fit.unitVariance
     : uNew !== undefined
       ? fit.unitVariance * uNew * uNew
       : (fit.unitVariance * fit.n) / fit.sumWeights;
-  const sdPrediction = Math.sqrt(varMean + varNew);
   const k = tQuantile((1 + coverage) / 2, fit.dof);
-  return {
-    value: fit.intercept + fit.slope * x0,
-    sdMean: Math.sqrt(varMean),
-    sdPrediction,
-    k,
-    halfWidth: k * sdPrediction,
-    coverage,
+  return (x0) => {
+    const varMean = fit.unitVariance * (1 / fit.sumWeights + (x0 - fit.xMean) ** 2 / fit.sxx);
+    const sdPrediction = Math.sqrt(varMean + varNew);
+    return {
+      value: fit.intercept + fit.slope * x0,
+      sdMean: Math.sqrt(varMean),
+      sdPrediction,
+      k,
+      halfWidth: k * sdPrediction,
+      coverage,
+    };
   };
 }
 
@@ -168,8 +180,9 @@ export function projectedExit(
 ): number | null {
   const coverage = options.coverage ?? 0.95;
   const horizon = options.horizon ?? 30;
+  const at = predictor(fit, coverage, options.uNew);
   const outside = (x: number) => {
-    const p = predict(fit, x, coverage, options.uNew);
+    const p = at(x);
     return p.value + p.halfWidth > tolerance || p.value - p.halfWidth < -tolerance;
   };
   if (outside(fromX)) return fromX;
@@ -297,11 +310,25 @@ export function analyseDrift(
   let segment = 0;
   let segmentStart: number | null = null;
   const steps: StepFinding[] = [];
-  const inSegment = (f: number) => (series.get(f) ?? []).filter((o) => o.segment === segment);
+  // The current segment at each frequency as its step tests read it: the points to fit, in order,
+  // and their distinct times (emptied when a segment starts). Kept as they grow rather than
+  // filtered out of the whole series for every check.
+  const current = new Map<number, { points: FitPoint[]; times: Set<number> }>();
+  const newSegment = () => {
+    segment += 1;
+    current.clear();
+  };
   const add = (p: HistoryPoint, t: number) => {
     const list = series.get(p.frequencyHz) ?? [];
     list.push({ tYears: t, phase: p.phase, errorPpm: p.errorPpm, uPpm: p.uPpm, segment });
     series.set(p.frequencyHz, list);
+    let now = current.get(p.frequencyHz);
+    if (!now) {
+      now = { points: [], times: new Set() };
+      current.set(p.frequencyHz, now);
+    }
+    now.points.push({ x: t, y: p.errorPpm, u: p.uPpm });
+    now.times.add(t);
     tolerance.set(p.frequencyHz, p.tolerancePpm);
   };
 
@@ -309,12 +336,9 @@ export function analyseDrift(
     const found = c.points.filter((p) => p.phase === 'as-found');
     const tests: StepTest[] = [];
     for (const p of found) {
-      const prior = inSegment(p.frequencyHz);
-      if (prior.length >= STEP_MIN_POINTS && new Set(prior.map((o) => o.tYears)).size >= 2) {
-        const fit = fitLine(
-          prior.map((o) => ({ x: o.tYears, y: o.errorPpm, u: o.uPpm })),
-          scale,
-        );
+      const prior = current.get(p.frequencyHz);
+      if (prior && prior.points.length >= STEP_MIN_POINTS && prior.times.size >= 2) {
+        const fit = fitLine(prior.points, scale);
         const pr = predict(fit, c.tYears, STEP_COVERAGE, p.uPpm);
         tests.push({
           frequencyHz: p.frequencyHz,
@@ -335,12 +359,12 @@ export function analyseDrift(
     if (c.adjusted) {
       // The as-found points close the old segment; the as-left points open the new one.
       for (const p of found) add(p, c.tYears);
-      segment += 1;
+      newSegment();
       segmentStart = c.tYears;
       for (const p of c.points.filter((q) => q.phase === 'as-left')) add(p, c.tYears);
     } else {
       if (isStep && index > 0) {
-        segment += 1;
+        newSegment();
         segmentStart = c.tYears;
       }
       for (const p of found) add(p, c.tYears);

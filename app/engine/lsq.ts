@@ -9,7 +9,7 @@
 // the covariance matrix at the solution (for u(f0) and u(QL)), Marquardt's scaled damping
 // (its damping is added to the diagonal unscaled), complex residuals written as two real rows
 // without building an n x p matrix object, and rejection of steps that leave the physical
-// region (QL > 0, a depth below 1) instead of clamping them. The loop is about 100 lines.
+// region (QL > 0, a depth below 1) instead of clamping them; and a statistical stop (stepTolerance).
 
 export interface LsqProblem {
   /** Number of residual rows. */
@@ -29,6 +29,17 @@ export interface LsqOptions {
   maxIterations?: number;
   /** Stop when the relative decrease of the weighted SSR falls below this. */
   relativeTolerance?: number;
+  /**
+   * Statistical stop, off when absent: stop once the Gauss-Newton step from the current point would
+   * move no linear combination of the parameters by more than this many of its own standard
+   * uncertainties, i.e. sqrt(d' J'WJ d / s^2) <= stepTolerance with s^2 from the part of the residual
+   * the step cannot remove: sqrt(params) times the relative offset of D. M. Bates and D. G. Watts
+   * (Nonlinear Regression Analysis and Its Applications, Wiley 1988, ch. 2; from memory). That last
+   * step is still taken (kept only if it lowers the SSR) without recomputing the Jacobian, so the
+   * answer lies far closer to the minimum than the tolerance; the covariance then uses the Jacobian
+   * of the point one such step before, which differs from the solution's by far less than its noise.
+   */
+  stepTolerance?: number;
 }
 
 export interface LsqResult {
@@ -39,6 +50,8 @@ export interface LsqResult {
   covariance: Float64Array;
   /** Residual variance factor s^2 = ssr / (rows - params). */
   residualVariance: number;
+  /** Residuals (data - model) at `params`. */
+  residuals: Float64Array;
   iterations: number;
   converged: boolean;
 }
@@ -91,18 +104,19 @@ export function spdInverse(a: Float64Array, n: number): Float64Array | null {
   return inv;
 }
 
-function normalEquations(
-  problem: LsqProblem,
+/** J'WJ (lower triangle mirrored) and J'Wr, row by row, for any number of parameters. */
+function normalEquationsAny(
+  p: number,
+  n: number,
+  w: Float64Array | undefined,
   r: Float64Array,
   jac: Float64Array,
   jtj: Float64Array,
   jtr: Float64Array,
 ): void {
-  const p = problem.params;
-  const w = problem.weights;
   jtj.fill(0);
   jtr.fill(0);
-  for (let i = 0; i < problem.rows; i++) {
+  for (let i = 0; i < n; i++) {
     const wi = w ? (w[i] as number) : 1;
     if (wi === 0) continue;
     const ri = r[i] as number;
@@ -115,6 +129,235 @@ function normalEquations(
     }
   }
   for (let a = 0; a < p; a++) for (let b = a + 1; b < p; b++) jtj[a * p + b] = jtj[b * p + a] as number;
+}
+
+/** normalEquationsAny for 5 parameters (the scalar dip), written out so every sum lives in a local
+ * variable: V8 keeps those in registers but not the elements of the p x p array, and this runs
+ * about four times faster on a 10,001-point trace (63 against 234 us, tmp measurement). */
+function normalEquations5(
+  n: number,
+  w: Float64Array | undefined,
+  r: Float64Array,
+  jac: Float64Array,
+  jtj: Float64Array,
+  jtr: Float64Array,
+): void {
+  let s00 = 0,
+    s10 = 0,
+    s11 = 0,
+    s20 = 0,
+    s21 = 0,
+    s22 = 0,
+    s30 = 0,
+    s31 = 0,
+    s32 = 0,
+    s33 = 0;
+  let s40 = 0,
+    s41 = 0,
+    s42 = 0,
+    s43 = 0,
+    s44 = 0,
+    t0 = 0,
+    t1 = 0,
+    t2 = 0,
+    t3 = 0,
+    t4 = 0;
+  for (let i = 0, k = 0; i < n; i++, k += 5) {
+    const wi = w ? (w[i] as number) : 1;
+    const j0 = jac[k] as number;
+    const j1 = jac[k + 1] as number;
+    const j2 = jac[k + 2] as number;
+    const j3 = jac[k + 3] as number;
+    const j4 = jac[k + 4] as number;
+    const v0 = wi * j0;
+    const v1 = wi * j1;
+    const v2 = wi * j2;
+    const v3 = wi * j3;
+    const v4 = wi * j4;
+    const ri = r[i] as number;
+    t0 += v0 * ri;
+    t1 += v1 * ri;
+    t2 += v2 * ri;
+    t3 += v3 * ri;
+    t4 += v4 * ri;
+    s00 += v0 * j0;
+    s10 += v1 * j0;
+    s11 += v1 * j1;
+    s20 += v2 * j0;
+    s21 += v2 * j1;
+    s22 += v2 * j2;
+    s30 += v3 * j0;
+    s31 += v3 * j1;
+    s32 += v3 * j2;
+    s33 += v3 * j3;
+    s40 += v4 * j0;
+    s41 += v4 * j1;
+    s42 += v4 * j2;
+    s43 += v4 * j3;
+    s44 += v4 * j4;
+  }
+  jtj.set([
+    s00,
+    s10,
+    s20,
+    s30,
+    s40,
+    s10,
+    s11,
+    s21,
+    s31,
+    s41,
+    s20,
+    s21,
+    s22,
+    s32,
+    s42,
+    s30,
+    s31,
+    s32,
+    s33,
+    s43,
+    s40,
+    s41,
+    s42,
+    s43,
+    s44,
+  ]);
+  jtr.set([t0, t1, t2, t3, t4]);
+}
+
+/** normalEquations5 for 6 parameters (the complex circle fit). */
+function normalEquations6(
+  n: number,
+  w: Float64Array | undefined,
+  r: Float64Array,
+  jac: Float64Array,
+  jtj: Float64Array,
+  jtr: Float64Array,
+): void {
+  let s00 = 0,
+    s10 = 0,
+    s11 = 0,
+    s20 = 0,
+    s21 = 0,
+    s22 = 0,
+    s30 = 0,
+    s31 = 0,
+    s32 = 0,
+    s33 = 0,
+    s40 = 0;
+  let s41 = 0,
+    s42 = 0,
+    s43 = 0,
+    s44 = 0,
+    s50 = 0,
+    s51 = 0,
+    s52 = 0,
+    s53 = 0,
+    s54 = 0,
+    s55 = 0;
+  let t0 = 0,
+    t1 = 0,
+    t2 = 0,
+    t3 = 0,
+    t4 = 0,
+    t5 = 0;
+  for (let i = 0, k = 0; i < n; i++, k += 6) {
+    const wi = w ? (w[i] as number) : 1;
+    const j0 = jac[k] as number;
+    const j1 = jac[k + 1] as number;
+    const j2 = jac[k + 2] as number;
+    const j3 = jac[k + 3] as number;
+    const j4 = jac[k + 4] as number;
+    const j5 = jac[k + 5] as number;
+    const v0 = wi * j0;
+    const v1 = wi * j1;
+    const v2 = wi * j2;
+    const v3 = wi * j3;
+    const v4 = wi * j4;
+    const v5 = wi * j5;
+    const ri = r[i] as number;
+    t0 += v0 * ri;
+    t1 += v1 * ri;
+    t2 += v2 * ri;
+    t3 += v3 * ri;
+    t4 += v4 * ri;
+    t5 += v5 * ri;
+    s00 += v0 * j0;
+    s10 += v1 * j0;
+    s11 += v1 * j1;
+    s20 += v2 * j0;
+    s21 += v2 * j1;
+    s22 += v2 * j2;
+    s30 += v3 * j0;
+    s31 += v3 * j1;
+    s32 += v3 * j2;
+    s33 += v3 * j3;
+    s40 += v4 * j0;
+    s41 += v4 * j1;
+    s42 += v4 * j2;
+    s43 += v4 * j3;
+    s44 += v4 * j4;
+    s50 += v5 * j0;
+    s51 += v5 * j1;
+    s52 += v5 * j2;
+    s53 += v5 * j3;
+    s54 += v5 * j4;
+    s55 += v5 * j5;
+  }
+  jtj.set([
+    s00,
+    s10,
+    s20,
+    s30,
+    s40,
+    s50,
+    s10,
+    s11,
+    s21,
+    s31,
+    s41,
+    s51,
+    s20,
+    s21,
+    s22,
+    s32,
+    s42,
+    s52,
+    s30,
+    s31,
+    s32,
+    s33,
+    s43,
+    s53,
+    s40,
+    s41,
+    s42,
+    s43,
+    s44,
+    s54,
+    s50,
+    s51,
+    s52,
+    s53,
+    s54,
+    s55,
+  ]);
+  jtr.set([t0, t1, t2, t3, t4, t5]);
+}
+
+/** J'WJ and J'Wr at the current point. */
+function normalEquations(
+  problem: LsqProblem,
+  r: Float64Array,
+  jac: Float64Array,
+  jtj: Float64Array,
+  jtr: Float64Array,
+): void {
+  const { params: p, rows: n, weights: w } = problem;
+  if (p === 5) normalEquations5(n, w, r, jac, jtj, jtr);
+  else if (p === 6) normalEquations6(n, w, r, jac, jtj, jtr);
+  else normalEquationsAny(p, n, w, r, jac, jtj, jtr);
 }
 
 function weightedSsr(problem: LsqProblem, r: Float64Array): number {
@@ -139,13 +382,18 @@ export function levenbergMarquardt(
   if (n <= p) throw new LsqError(`${n} data for ${p} parameters: a fit needs more data than parameters`);
   const maxIterations = options.maxIterations ?? 200;
   const tolerance = options.relativeTolerance ?? 1e-12;
+  const stepTolerance = options.stepTolerance;
   let params = Float64Array.from(start);
-  const r = new Float64Array(n);
-  const jac = new Float64Array(n * p);
-  const rTry = new Float64Array(n);
+  // Two residual and two Jacobian buffers: a trial is evaluated with its Jacobian into the spare pair,
+  // and an accepted trial swaps them in rather than being evaluated a second time.
+  let r = new Float64Array(n);
+  let jac = new Float64Array(n * p);
+  let rTry = new Float64Array(n);
+  let jacTry = new Float64Array(n * p);
   const jtj = new Float64Array(p * p);
   const jtr = new Float64Array(p);
   const damped = new Float64Array(p * p);
+  const trial = new Float64Array(p);
   if (!problem.evaluate(params, r, jac)) throw new LsqError('the start values lie outside the model');
   let ssr = weightedSsr(problem, r);
   let lambda = 1e-3;
@@ -154,6 +402,28 @@ export function levenbergMarquardt(
   normalEquations(problem, r, jac, jtj, jtr);
   while (iterations < maxIterations) {
     iterations++;
+    if (stepTolerance !== undefined) {
+      const step = choleskySolve(jtj, jtr, p);
+      if (step) {
+        // d'J'Wr = d'J'WJd: the SSR the Gauss-Newton step would remove.
+        let removable = 0;
+        for (let a = 0; a < p; a++) removable += (step[a] as number) * (jtr[a] as number);
+        const s2 = Math.max(ssr - removable, 0) / (n - p);
+        if (removable <= stepTolerance * stepTolerance * s2) {
+          for (let a = 0; a < p; a++) trial[a] = (params[a] as number) + (step[a] as number);
+          if (problem.evaluate(trial, rTry, null)) {
+            const ssrTry = weightedSsr(problem, rTry);
+            if (ssrTry <= ssr) {
+              params = Float64Array.from(trial);
+              ssr = ssrTry;
+              [r, rTry] = [rTry, r];
+            }
+          }
+          converged = true;
+          break;
+        }
+      }
+    }
     let accepted = false;
     for (let attempt = 0; attempt < 40 && !accepted; attempt++) {
       damped.set(jtj);
@@ -167,15 +437,15 @@ export function levenbergMarquardt(
         lambda *= 10;
         continue;
       }
-      const trial = new Float64Array(p);
       for (let a = 0; a < p; a++) trial[a] = (params[a] as number) + (step[a] as number);
-      const inside = problem.evaluate(trial, rTry, null);
+      const inside = problem.evaluate(trial, rTry, jacTry);
       const ssrTry = inside ? weightedSsr(problem, rTry) : Infinity;
       if (ssrTry <= ssr) {
         const decrease = (ssr - ssrTry) / Math.max(ssr, Number.MIN_VALUE);
-        params = trial;
+        params = Float64Array.from(trial);
         ssr = ssrTry;
-        problem.evaluate(params, r, jac);
+        [r, rTry] = [rTry, r];
+        [jac, jacTry] = [jacTry, jac];
         normalEquations(problem, r, jac, jtj, jtr);
         lambda = Math.max(lambda / 10, 1e-12);
         accepted = true;
@@ -192,5 +462,5 @@ export function levenbergMarquardt(
   if (!inverse) throw new LsqError('the fit is degenerate: its parameters cannot be told apart by the data');
   const residualVariance = ssr / (n - p);
   const covariance = inverse.map((v) => v * residualVariance);
-  return { params, ssr, covariance, residualVariance, iterations, converged };
+  return { params, ssr, covariance, residualVariance, residuals: r, iterations, converged };
 }

@@ -2,6 +2,7 @@
 import type { CheckRecord, CheckState, CheckSummary } from '../../app/api/contract';
 import type { Conditions, DecisionRule, PointResult, Reading, Verdict } from '../../app/engine/model';
 import { decodeJson, encodeJson } from '../../app/api/json';
+import { packPointResult } from '../../app/api/point-pack';
 import type { LabDb } from '../store';
 import { cachedStatement } from '../statements';
 
@@ -99,7 +100,6 @@ export function insertRevision(
     `INSERT INTO check_point (revision_id, seq, phase, reference_hz, standard_id, dip_depth_db, error_hz, error_ppm,
        expanded_hz, coverage_k, tolerance_hz, verdict, result_json) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
   );
-  const rd = cachedStatement(db, 'INSERT INTO reading (point_id, seq, value, direction) VALUES (?, ?, ?, ?)');
   c.points.forEach((p, i) => {
     const pointId = Number(
       pt.run(
@@ -115,13 +115,31 @@ export function insertRevision(
         p.result.budget.coverageFactor,
         p.result.decision.toleranceHz,
         p.result.decision.verdict,
-        encodeJson(p.result),
+        // Packed (budget lines shortened): the same value when read back, see point-pack.ts.
+        packPointResult(p.result) ?? encodeJson(p.result),
       ).lastInsertRowid,
     );
-    p.readings.forEach((r, j) => rd.run(pointId, j + 1, r.value, r.direction));
+    insertReadings(db, pointId, p.readings);
   });
   return revisionId;
 }
+
+/** A point's readings in one statement (a bulk import writes four for each of its points): the
+ * same rows, in the same order, as one INSERT per reading. */
+function insertReadings(db: LabDb, pointId: number, readings: readonly Reading[]): void {
+  for (let from = 0; from < readings.length; from += READINGS_PER_STATEMENT) {
+    const part = readings.slice(from, from + READINGS_PER_STATEMENT);
+    const values: (number | string)[] = [];
+    part.forEach((r, j) => values.push(pointId, from + j + 1, r.value, r.direction));
+    cachedStatement(db, readingsSql(part.length)).run(values);
+  }
+}
+
+const READINGS_PER_STATEMENT = 16;
+const READINGS_SQL: string[] = [];
+const readingsSql = (n: number): string =>
+  (READINGS_SQL[n] ??=
+    `INSERT INTO reading (point_id, seq, value, direction) VALUES ${Array(n).fill('(?, ?, ?, ?)').join(', ')}`);
 
 interface RevisionRow {
   id: number;

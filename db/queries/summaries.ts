@@ -1,8 +1,9 @@
 // Reads behind the per-meter summaries (app/api/summaries.ts): each meter's generation (raised by
 // the triggers of 0006 on every change to its history), one meter's register row without the
-// whole register, and the interval evidence of the attributes method straight from the stored
-// point columns, for one meter or the whole fleet in a single pass.
-import type { Statement } from 'better-sqlite3';
+// whole register, the interval evidence of the attributes method straight from the stored point
+// columns, for one meter or the whole fleet in a single pass, and the summaries kept in the lab
+// file (0008).
+import Database, { type Statement } from 'better-sqlite3';
 import type { Meter } from '../../app/api/contract';
 import type { LabDb } from '../store';
 import type { RegisterDbRow } from './meters';
@@ -153,4 +154,73 @@ export function attributeChecks(db: LabDb, meterId?: number): AttributeCheckRow[
       ? (statement(db, ATTRIBUTE_SQL('')).all() as AttributeSqlRow[])
       : (statement(db, ATTRIBUTE_SQL('WHERE ce.meter_id = ?')).all(meterId) as AttributeSqlRow[]);
   return rows.map(toAttributeRow);
+}
+
+// ---------------------------------------------------------------------------------------------
+// Summaries kept in the lab file (migration 0008): derived data a new process reads instead of
+// recomputing. Optional in every way: a file without the table (older schema, opened read-only)
+// has none, and a write that cannot happen at once is skipped.
+
+export type SummaryKind = 'flags' | 'attributes';
+
+export interface StoredSummaryRow {
+  meterId: number;
+  generation: number;
+  summaryJson: string;
+}
+
+/** Whether this file holds the summary table (schema 8 or later). */
+export function hasStoredSummaries(db: LabDb): boolean {
+  return (
+    statement(
+      db,
+      "SELECT 1 AS one FROM sqlite_master WHERE type = 'table' AND name = 'meter_summary'",
+    ).get() !== undefined
+  );
+}
+
+/** The stored summaries of one kind made by this version of the analysis (`madeBy`). */
+export function storedSummaries(db: LabDb, kind: SummaryKind, madeBy: string): StoredSummaryRow[] {
+  if (!hasStoredSummaries(db)) return [];
+  return (
+    statement(
+      db,
+      'SELECT meter_id, generation, summary_json FROM meter_summary WHERE kind = ? AND made_by = ?',
+    ).all(kind, madeBy) as { meter_id: number; generation: number; summary_json: string }[]
+  ).map((r) => ({ meterId: r.meter_id, generation: r.generation, summaryJson: r.summary_json }));
+}
+
+/**
+ * Stores summaries in one transaction, only if that can happen at once: never on a read-only
+ * handle, a file without the table, or inside a caller's transaction, and without waiting for
+ * another process's write lock (busy_timeout 0 for the attempt). Returns whether they were
+ * stored; a summary that could not be stored is simply made again by the next process.
+ */
+export function storeSummaries(
+  db: LabDb,
+  kind: SummaryKind,
+  madeBy: string,
+  rows: readonly StoredSummaryRow[],
+): boolean {
+  if (rows.length === 0 || db.readonly || db.inTransaction || !hasStoredSummaries(db)) return false;
+  const upsert = statement(
+    db,
+    `INSERT INTO meter_summary (meter_id, kind, generation, made_by, summary_json) VALUES (?, ?, ?, ?, ?)
+     ON CONFLICT (meter_id, kind) DO UPDATE SET
+       generation = excluded.generation, made_by = excluded.made_by, summary_json = excluded.summary_json`,
+  );
+  const timeout = db.pragma('busy_timeout', { simple: true }) as number;
+  db.pragma('busy_timeout = 0');
+  try {
+    db.transaction(() => {
+      for (const r of rows) upsert.run(r.meterId, kind, r.generation, madeBy, r.summaryJson);
+    })();
+    return true;
+  } catch (e) {
+    // Busy, read-only file, disk full...: the summaries are derived, the read goes on without.
+    if (e instanceof Database.SqliteError) return false;
+    throw e;
+  } finally {
+    db.pragma(`busy_timeout = ${timeout}`);
+  }
 }

@@ -4,15 +4,19 @@
 // (computed fresh) and on (cold, then warm), and again after each kind of change a summary must
 // notice: a new check, signing, an amendment once signed, and a change of state. The counts of
 // computed summaries show the warm answers really came from the cache, and that a change
-// recomputes only the meter it touched.
+// recomputes only the meter it touched. On a small synthetic fleet whose drift exits turn into
+// warnings as the years pass, the register on later days is what fresh computation gives on that
+// day, with nothing recomputed (the summaries hold no date). The summaries kept in the lab file
+// (0008) are tested in stored-summaries.test.ts.
 import { beforeAll, describe, expect, it } from 'vitest';
 import type { LabApi } from '../../app/api/contract';
 import type { CheckDocumentInput } from '../../app/api/schemas';
-import { createLabService } from '../../app/api/service';
+import { createLabService, fixedClock } from '../../app/api/service';
 import { setSummariesEnabled, summariesComputed } from '../../app/api/summaries';
 import { openLabDb, type LabDb } from '../../db/store';
 import { loadBundle, readSampleBundle, type SampleBundle } from '../../sample-lab/load';
 import { clock } from '../fixtures/lab';
+import { createFleet, historyCsv } from '../bench/fleet-data';
 
 let db: LabDb;
 let api: LabApi;
@@ -139,4 +143,30 @@ describe('cached per-meter summaries', () => {
     const row = (now.got.due as { assetId: string; state: string }[]).find((r) => r.assetId === doc.meter);
     expect(row?.state).toBe('quarantined');
   }, 180_000);
+});
+
+describe('register flags on later days', () => {
+  it('are what fresh computation gives on each day, with nothing recomputed after the first', async () => {
+    const fleetDb = openLabDb(':memory:');
+    await createFleet(createLabService(fleetDb, { clock }), 30);
+    await createLabService(fleetDb, { clock }).importCsv(historyCsv(0, 30).csv);
+    const days = ['2026-12-01', '2028-12-01', '2030-06-01', '2033-01-01'];
+    const shown = new Set<string>();
+    let computed: number | null = null;
+    for (const day of days) {
+      const onDay = createLabService(fleetDb, { clock: fixedClock(`${day}T09:30:00.000Z`) });
+      setSummariesEnabled(fleetDb, false);
+      const expected = await onDay.listDue({ withinDays: 3650 });
+      setSummariesEnabled(fleetDb, true);
+      expect(await onDay.listDue({ withinDays: 3650 })).toStrictEqual(expected);
+      // The first day computes every meter; later days only resolve the stored words.
+      computed ??= summariesComputed(fleetDb).flags;
+      expect(summariesComputed(fleetDb).flags).toBe(computed);
+      shown.add(JSON.stringify(expected.map((r) => r.flags)));
+    }
+    expect(computed).toBe(30);
+    // A projected drift exit becomes a warning within three years of it: the days differ.
+    expect(shown.size).toBeGreaterThan(1);
+    fleetDb.close();
+  }, 120_000);
 });

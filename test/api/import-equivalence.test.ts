@@ -1,5 +1,6 @@
 // The bulk import (importCsv: one validate-and-write pass per check inside one transaction, lab
-// settings, meters and standards looked up once per import, prepared statements kept) stores
+// settings, meters and standards looked up once per import, prepared statements kept, rows read
+// by app/formats/csv-rows.ts, a point's readings in one statement) stores
 // exactly what recording each check on its own stores. On the demo lab: every check recorded
 // through recordCheck, its history exported, and that CSV imported into a lab with the same
 // settings, people, standards and meters give the same export, the same getCheck JSON for every
@@ -9,6 +10,7 @@
 import { beforeAll, describe, expect, it } from 'vitest';
 import type { LabApi } from '../../app/api/contract';
 import { LabError } from '../../app/api/errors';
+import { PACK_MARK } from '../../app/api/point-pack';
 import { createLabService } from '../../app/api/service';
 import { openLabDb, type LabDb } from '../../db/store';
 import { loadBundle, readSampleBundle, type SampleBundle } from '../../sample-lab/load';
@@ -69,8 +71,14 @@ describe('the bulk import against checks recorded one at a time (demo lab)', () 
     expect(r.checksImported).toBeGreaterThan(100);
     expect(await imported.api.exportCsv()).toBe(csv);
     expect(await everyCheck(imported)).toEqual(await everyCheck(recorded));
-    // Byte for byte, result_json included: what a record re-renders from later.
+    // Byte for byte, result_json included: what a record re-renders from later. Both paths
+    // store it packed (test/api/point-pack.test.ts shows it reads back as the JSON did).
     expect(storedPoints(imported.db)).toEqual(storedPoints(recorded.db));
+    expect(
+      (storedPoints(imported.db) as { result_json: string }[]).every((p) =>
+        p.result_json.startsWith(PACK_MARK),
+      ),
+    ).toBe(true);
     expect(storedReadings(imported.db)).toEqual(storedReadings(recorded.db));
     expect(await imported.api.listDue({ withinDays: 3650 })).toEqual(
       await recorded.api.listDue({ withinDays: 3650 }),
