@@ -16,6 +16,8 @@ const FILES: ReadonlyArray<readonly [number, string]> = [
   [4, '0004_drafts.sql'],
   [5, '0005_documents.sql'],
   [6, '0006_summaries.sql'],
+  [7, '0007_stored_summaries.sql'],
+  [8, '0008_audit_index.sql'],
 ];
 
 function load(version: number, file: string): Migration {

@@ -6,7 +6,7 @@
 // within a few years of today) is kept with its date and resolved at each read, so a new day
 // recomputes nothing.
 // Summaries live in memory per database handle and, where the file has the table of migration
-// 0008 and can be written at once, in the lab file too, so a new process (every CLI command)
+// 0007 and can be written at once, in the lab file too, so a new process (every CLI command)
 // reads them instead of recomputing every meter's history. A read never fails or waits for
 // want of writing them (db/queries/summaries.ts storeSummaries).
 import type { AttributeRecord } from '../engine/intervals';

@@ -2,7 +2,7 @@
 // the triggers of 0006 on every change to its history), one meter's register row without the
 // whole register, the interval evidence of the attributes method straight from the stored point
 // columns, for one meter or the whole fleet in a single pass, and the summaries kept in the lab
-// file (0008).
+// file (0007).
 import Database, { type Statement } from 'better-sqlite3';
 import type { Meter } from '../../app/api/contract';
 import type { LabDb } from '../store';
@@ -157,7 +157,7 @@ export function attributeChecks(db: LabDb, meterId?: number): AttributeCheckRow[
 }
 
 // ---------------------------------------------------------------------------------------------
-// Summaries kept in the lab file (migration 0008): derived data a new process reads instead of
+// Summaries kept in the lab file (migration 0007): derived data a new process reads instead of
 // recomputing. Optional in every way: a file without the table (older schema, opened read-only)
 // has none, and a write that cannot happen at once is skipped.
 

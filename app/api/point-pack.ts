@@ -1,0 +1,322 @@
+// A compact, lossless text form of a stored point result (check_point.result_json).
+//
+// Why: a point's full evaluation (budget lines with their labels, decision, notes) is about
+// 2.8 KB of JSON, two thirds of it the budget lines, which repeat the same key names and the
+// same words in every point; at a fleet's 550,000 points that text was most of the lab file
+// (2.4 GB) and most of the time a bulk import spent in SQLite (issue 8).
+//
+// The form is JSON: the result's own object, keys in their order, behind a first key "~": 1,
+// with everything as encodeJson writes it except budget.contributions, where
+// - a line whose keys, in order, are one of SHAPES is [shape number, ...its values];
+// - any other array is [0, ...its items]; any other object stays an object (keys as they are);
+// - a string of WORDS is "~" + its number in base 36, one of the TEMPLATES with its middle part
+//   is "~" + number + "|" + middle, and a string that begins with "~" gets one more "~".
+// So SQLite's JSON functions still read every number outside the budget lines where they were
+// (db/queries/history.ts reads budget.combinedHz so), and what `decodeJson` (app/api/json.ts)
+// returns for a packed text is what it returns for the JSON text of the same result, key order,
+// non-finite numbers and all: signatures and documents, computed from the decoded record, cannot
+// tell them apart (test/api/point-pack.test.ts). A value the form cannot hold exactly (another
+// shape, a key "__proto__", an undefined, a class instance) is left to the caller to store as
+// plain JSON. Rows written before this form read as before.
+//
+// The tables below belong to format 1 and never change once shipped; a new entry means a new
+// format number, which an older reader leaves undecoded rather than misreads.
+/** How a packed text begins; no result stored as plain JSON begins so (its first key is meanDial). */
+export const PACK_MARK = '{"~":1,';
+
+const RESULT_KEYS = [
+  'meanDial',
+  'indicatedHz',
+  'upMeanHz',
+  'downMeanHz',
+  'thermalCorrectionPpm',
+  'airCorrectionPpm',
+  'correctedHz',
+  'errorHz',
+  'errorPpm',
+  'budget',
+  'expandedPpm',
+  'decision',
+  'notes',
+];
+const BUDGET_KEYS = [
+  'contributions',
+  'combinedHz',
+  'effectiveDof',
+  'coverageFactor',
+  'coverageProbability',
+  'expandedHz',
+];
+
+/** Budget lines, in the two key orders the engine writes them. */
+const SHAPES: readonly (readonly string[])[] = [
+  [
+    'key',
+    'label',
+    'type',
+    'distribution',
+    'unit',
+    'standardUncertainty',
+    'sensitivity',
+    'dof',
+    'contributionHz',
+  ],
+  [
+    'key',
+    'label',
+    'unit',
+    'sensitivity',
+    'type',
+    'distribution',
+    'standardUncertainty',
+    'dof',
+    'contributionHz',
+  ],
+];
+
+/** Whole values. The non-finite numbers are here as the strings encodeJson writes them, and
+ * read back as numbers, as decodeJson reads those strings. */
+const WORDS: readonly (string | number)[] = [
+  Infinity,
+  -Infinity,
+  NaN,
+  'reference',
+  'repeatability',
+  'resolution',
+  'hysteresis',
+  'setting',
+  'temperature',
+  'expansion',
+  'pressure',
+  'humidity',
+  'fit',
+  'A',
+  'B',
+  'normal',
+  'rectangular',
+  't',
+  'Hz',
+  'div',
+  'degC',
+  '1/K',
+  'hPa',
+  '%RH',
+  'pass',
+  'conditional-pass',
+  'conditional-fail',
+  'fail',
+  'simple',
+  'guarded',
+  'guarded-fixed',
+  'non-binary',
+  'Reference source (certificate)',
+  'Repeatability (range of readings, rectangular)',
+  'Hysteresis between directions (half the difference of the means)',
+  'Bench temperature (cavity expansion and air index)',
+  'Expansion coefficient of the cavity',
+  'Air pressure (air index)',
+  'Relative humidity (air index)',
+  'one direction only: hysteresis not evaluated',
+  'one reading per direction: repeatability taken as rectangular with the range of the readings as half-width (no Type A evaluation possible)',
+  "reference frequency lies outside the meter's stated band",
+  'sweep method: dial set to a graduation, resonance fitted to the swept trace',
+];
+
+/** [before, after] the part that differs from point to point. */
+const TEMPLATES: readonly (readonly [string, string])[] = [
+  ['Repeatability (pooled s = ', ' readings)'],
+  ['Dial resolution (', ', half-width = resolution / 2)'],
+  ['Setting on the dip (', ')'],
+  ["Resonance fit of the sweep (u(f0) from the fit's covariance, ", ' dof)'],
+  ['test uncertainty ratio ', ' is below 4'],
+];
+
+const wordCode = new Map<string, string>(WORDS.map((w, i) => [String(w), `~${i.toString(36)}`]));
+
+class Unpackable extends Error {}
+
+function packString(s: string): string {
+  const code = wordCode.get(s);
+  if (code !== undefined) return code;
+  for (let i = 0; i < TEMPLATES.length; i++) {
+    const [before, after] = TEMPLATES[i] as readonly [string, string];
+    if (s.length >= before.length + after.length && s.startsWith(before) && s.endsWith(after))
+      return `~${i.toString(36)}|${s.slice(before.length, s.length - after.length)}`;
+  }
+  return s.charCodeAt(0) === 0x7e ? `~${s}` : s;
+}
+
+function pack(v: unknown): unknown {
+  switch (typeof v) {
+    case 'number':
+      return Number.isFinite(v) ? v : wordCode.get(String(v));
+    case 'string':
+      return packString(v);
+    case 'boolean':
+      return v;
+    case 'object': {
+      if (v === null) return null;
+      if (Array.isArray(v)) {
+        const out: unknown[] = [0];
+        for (const item of v) out.push(pack(item));
+        return out;
+      }
+      const proto = Object.getPrototypeOf(v) as unknown;
+      if (proto !== Object.prototype && proto !== null) throw new Unpackable();
+      const o = v as Record<string, unknown>;
+      for (let i = 0; i < SHAPES.length; i++) {
+        const keys = SHAPES[i] as readonly string[];
+        if (!keysAre(o, keys)) continue;
+        const out: unknown[] = [i + 1];
+        for (const k of keys) out.push(packValue(o[k]));
+        return out;
+      }
+      const out: Record<string, unknown> = {};
+      for (const k of Object.keys(o)) {
+        if (k === '__proto__') throw new Unpackable();
+        out[k] = packValue(o[k]);
+      }
+      return out;
+    }
+    default:
+      throw new Unpackable();
+  }
+}
+
+/** An object's value: JSON leaves out a key whose value is undefined; keep such values plain. */
+function packValue(v: unknown): unknown {
+  if (v === undefined) throw new Unpackable();
+  return pack(v);
+}
+
+const plainObject = (v: unknown): v is Record<string, unknown> => {
+  if (v === null || typeof v !== 'object' || Array.isArray(v)) return false;
+  const proto = Object.getPrototypeOf(v) as unknown;
+  return proto === Object.prototype || proto === null;
+};
+/** Whether the own keys of `o`, in order, are `keys` (without making the list of them: this
+ * runs for every budget line of every point written). */
+function keysAre(o: object, keys: readonly string[]): boolean {
+  let i = 0;
+  for (const k in o) {
+    if (!Object.prototype.hasOwnProperty.call(o, k) || k !== keys[i]) return false;
+    i++;
+  }
+  return i === keys.length;
+}
+
+/** A value outside the budget lines as encodeJson writes it (non-finite numbers as text), for
+ * the plain data a result is; anything else is Unpackable. */
+function plain(v: unknown): unknown {
+  switch (typeof v) {
+    case 'number':
+      return Number.isFinite(v) ? v : String(v);
+    case 'string':
+    case 'boolean':
+      return v;
+    case 'object': {
+      if (v === null) return null;
+      if (Array.isArray(v)) return v.map(plain);
+      if (!plainObject(v)) throw new Unpackable();
+      const out: Record<string, unknown> = {};
+      for (const k of Object.keys(v)) {
+        if (k === '__proto__' || v[k] === undefined) throw new Unpackable();
+        out[k] = plain(v[k]);
+      }
+      return out;
+    }
+    default:
+      throw new Unpackable();
+  }
+}
+
+/** The packed text of a point result, or undefined when the form cannot hold it exactly (the
+ * caller then stores the result as JSON with encodeJson). */
+export function packPointResult(value: unknown): string | undefined {
+  if (!plainObject(value) || !keysAre(value, RESULT_KEYS)) return undefined;
+  const budget = value.budget;
+  if (!plainObject(budget) || !keysAre(budget, BUDGET_KEYS) || !Array.isArray(budget.contributions))
+    return undefined;
+  try {
+    const out: Record<string, unknown> = { '~': 1 };
+    for (const k of RESULT_KEYS) {
+      if (value[k] === undefined) return undefined;
+      out[k] = k === 'budget' ? undefined : plain(value[k]);
+    }
+    const packedBudget: Record<string, unknown> = {};
+    for (const k of BUDGET_KEYS) {
+      if (budget[k] === undefined) return undefined;
+      packedBudget[k] =
+        k === 'contributions' ? (budget.contributions as unknown[]).map(pack) : plain(budget[k]);
+    }
+    out.budget = packedBudget;
+    return JSON.stringify(out);
+  } catch (e) {
+    if (e instanceof Unpackable) return undefined;
+    throw e;
+  }
+}
+
+function unpackString(s: string): unknown {
+  if (s.charCodeAt(0) !== 0x7e) {
+    // As decodeJson reads these strings.
+    return s === 'Infinity' ? Infinity : s === '-Infinity' ? -Infinity : s === 'NaN' ? NaN : s;
+  }
+  if (s.charCodeAt(1) === 0x7e) return s.slice(1);
+  const bar = s.indexOf('|');
+  if (bar < 0) {
+    const word = WORDS[parseInt(s.slice(1), 36)];
+    if (word === undefined) throw new Error(`packed result: unknown word ${s}`);
+    return word;
+  }
+  const template = TEMPLATES[parseInt(s.slice(1, bar), 36)];
+  if (!template) throw new Error(`packed result: unknown template ${s.slice(0, bar)}`);
+  return template[0] + s.slice(bar + 1) + template[1];
+}
+
+function unpack(v: unknown): unknown {
+  if (typeof v === 'string') return unpackString(v);
+  if (v === null || typeof v !== 'object') return v;
+  if (Array.isArray(v)) {
+    const tag = v[0] as unknown;
+    if (tag === 0) {
+      const out: unknown[] = new Array(v.length - 1);
+      for (let i = 1; i < v.length; i++) out[i - 1] = unpack(v[i]);
+      return out;
+    }
+    const keys = typeof tag === 'number' ? SHAPES[tag - 1] : undefined;
+    if (!keys || keys.length !== v.length - 1) throw new Error(`packed result: unknown shape ${String(tag)}`);
+    const out: Record<string, unknown> = {};
+    for (let i = 0; i < keys.length; i++) out[keys[i] as string] = unpack(v[i + 1]);
+    return out;
+  }
+  const out: Record<string, unknown> = {};
+  for (const [k, x] of Object.entries(v as Record<string, unknown>)) {
+    // JSON.parse makes "__proto__" an own key; so does this.
+    if (k === '__proto__')
+      Object.defineProperty(out, k, {
+        value: unpack(x),
+        enumerable: true,
+        writable: true,
+        configurable: true,
+      });
+    else out[k] = unpack(x);
+  }
+  return out;
+}
+
+/** The result a packed text holds, from the text JSON.parse (with decodeJson's reading of
+ * non-finite numbers) made of it; undefined when it is not the packed form after all. */
+export function unpackPointResult(parsed: unknown): unknown {
+  if (!plainObject(parsed) || parsed['~'] !== 1) return undefined;
+  const own = Object.keys(parsed);
+  if (own.length !== RESULT_KEYS.length + 1 || !RESULT_KEYS.every((k, i) => own[i + 1] === k))
+    return undefined;
+  const budget = parsed.budget;
+  if (!plainObject(budget) || !keysAre(budget, BUDGET_KEYS) || !Array.isArray(budget.contributions))
+    return undefined;
+  const out: Record<string, unknown> = {};
+  for (const k of RESULT_KEYS) out[k] = parsed[k];
+  out.budget = { ...budget, contributions: (budget.contributions as unknown[]).map(unpack) };
+  return out;
+}
