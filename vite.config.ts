@@ -33,11 +33,22 @@ export default defineConfig({
     // The CSP forbids inline code, so never inline assets as data: URLs.
     assetsInlineLimit: 0,
     sourcemap: true,
+    // One bundle (charts, virtual rows, CSV) loaded from disk or loopback, never over a network:
+    // its size costs nothing worth splitting for, so the warning is set above it.
+    chunkSizeWarningLimit: 1500,
   },
   server: {
     host: '127.0.0.1',
-    // `vite` dev server: the API comes from a running `npm start` in browser mode.
-    // changeOrigin: the server answers only its own Host header.
-    proxy: { '/api': { target: 'http://127.0.0.1:5317', changeOrigin: true } },
+    // `vite` dev server: the API comes from a running `npm start` in browser mode. Open its printed
+    // address (with the token) once first: the cookie it sets reaches this port too, since cookies
+    // ignore ports. changeOrigin: the server answers only its own Host header; the Origin of this
+    // page is dropped because the server refuses other origins.
+    proxy: {
+      '/api': {
+        target: 'http://127.0.0.1:5317',
+        changeOrigin: true,
+        configure: (proxy) => proxy.on('proxyReq', (req) => req.removeHeader('origin')),
+      },
+    },
   },
 });
