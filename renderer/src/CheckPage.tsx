@@ -10,6 +10,7 @@ import { Cautions } from './Cautions';
 import { VERDICT_LABEL, formatPpm } from './format';
 import { revisionWord } from './MeterRecords';
 import { href } from './routes';
+import { usePdfUrl } from './WorksheetButton';
 import { messageOf, useLoad } from './useLoad';
 
 interface Loaded {
@@ -332,13 +333,7 @@ function IssuePanel(props: {
 }
 
 function IssuedFile({ file }: { file: IssuedDocumentFile }) {
-  const [url, setUrl] = useState<string | null>(null);
-  useEffect(() => {
-    const bytes = Uint8Array.from(atob(file.pdfBase64), (c) => c.charCodeAt(0));
-    const u = URL.createObjectURL(new Blob([bytes], { type: 'application/pdf' }));
-    setUrl(u);
-    return () => URL.revokeObjectURL(u);
-  }, [file]);
+  const url = usePdfUrl(file.pdfBase64);
   const name = `${file.number}${file.revision > 1 ? `-rev${file.revision}` : ''}.pdf`;
   return (
     <p className="status ok" data-testid="issued">

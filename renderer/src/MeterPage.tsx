@@ -21,6 +21,7 @@ import {
   formatPpm,
 } from './format';
 import { href } from './routes';
+import { WorksheetButton } from './WorksheetButton';
 import { messageOf, useLoad } from './useLoad';
 
 /** How many of the newest checks the chart compares. */
@@ -152,6 +153,7 @@ export function MeterPage({ api, assetId }: { api: LabApi; assetId: string }) {
             Record a check of {m.assetId}
           </a>
         )}
+        <WorksheetButton api={api} assetId={m.assetId} />
       </div>
 
       <section aria-labelledby="chart-title">

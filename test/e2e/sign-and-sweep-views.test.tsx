@@ -9,6 +9,7 @@ import type { CheckRevisionView, Signer } from '../../app/api/contract-records';
 import type { TraceFit } from '../../app/api/contract-sweep';
 import { LabError } from '../../app/api/errors';
 import { CheckPage } from '../../renderer/src/CheckPage';
+import { MeterPage } from '../../renderer/src/MeterPage';
 import { PeopleSection } from '../../renderer/src/PeopleSection';
 import { RecordCheckPage } from '../../renderer/src/RecordCheckPage';
 import { emptyForm, fromDocument, toDocument } from '../../renderer/src/checkForm';
@@ -288,5 +289,22 @@ describe('the sweep method in the record form', () => {
       dialSetting: '10.0002',
       sweep: { name: 'a.s2p' },
     });
+  });
+});
+
+describe("the bench worksheet from a meter's page", () => {
+  it('asks for the worksheet and offers the PDF to save', async () => {
+    const asked: string[] = [];
+    const { api } = fakeBench({
+      worksheet: (assetId) => {
+        asked.push(assetId);
+        return Promise.resolve({ assetId, printedOn: '2026-12-01', pdfBase64: btoa('%PDF-1.7') });
+      },
+    });
+    render(<MeterPage api={api} assetId="WM-003" />);
+    fireEvent.click(await screen.findByRole('button', { name: 'Print the bench worksheet' }));
+    const ready = await screen.findByTestId('worksheet-ready');
+    expect(within(ready).getByRole('link', { name: 'Save worksheet-WM-003-2026-12-01.pdf' })).toBeTruthy();
+    expect(asked).toEqual(['WM-003']);
   });
 });
