@@ -23,6 +23,21 @@ export interface LsqProblem {
   evaluate(p: Float64Array, r: Float64Array, jac: Float64Array | null): boolean;
   /** Weight of each row (1 / variance up to a common factor); all 1 when absent. */
   weights?: Float64Array;
+  /**
+   * Optional fused form of `evaluate` with the Jacobian: fills r as `evaluate` does and, from the
+   * same derivatives, J'WJ (params x params, row-major, both triangles) and J'Wr with the weights w
+   * (all 1 when absent), without storing J; returns the weighted SSR sum w_i r_i^2 (summed in row
+   * order, as weightedSsr does), or null when p is outside the physical region. When given, the
+   * solver uses it instead of `evaluate(p, r, jac)`: an n x p Jacobian written out and read back,
+   * and a further pass over the residuals, cost about as much as the model's own arithmetic.
+   */
+  normalEquations?(
+    p: Float64Array,
+    w: Float64Array | undefined,
+    r: Float64Array,
+    jtj: Float64Array,
+    jtr: Float64Array,
+  ): number | null;
 }
 
 export interface LsqOptions {
@@ -384,22 +399,41 @@ export function levenbergMarquardt(
   const tolerance = options.relativeTolerance ?? 1e-12;
   const stepTolerance = options.stepTolerance;
   let params = Float64Array.from(start);
-  // Two residual and two Jacobian buffers: a trial is evaluated with its Jacobian into the spare pair,
-  // and an accepted trial swaps them in rather than being evaluated a second time.
+  // Two residual buffers and two sets of normal equations (with, unless the problem fuses them, two
+  // Jacobians): a trial is evaluated with its derivatives into the spare set, and an accepted trial
+  // swaps them in rather than being evaluated a second time.
+  const fused = problem.normalEquations?.bind(problem);
   let r = new Float64Array(n);
-  let jac = new Float64Array(n * p);
   let rTry = new Float64Array(n);
-  let jacTry = new Float64Array(n * p);
-  const jtj = new Float64Array(p * p);
-  const jtr = new Float64Array(p);
+  let jac = fused ? null : new Float64Array(n * p);
+  let jacTry = fused ? null : new Float64Array(n * p);
+  let jtj = new Float64Array(p * p);
+  let jtr = new Float64Array(p);
+  let jtjTry = new Float64Array(p * p);
+  let jtrTry = new Float64Array(p);
   const damped = new Float64Array(p * p);
   const trial = new Float64Array(p);
-  if (!problem.evaluate(params, r, jac)) throw new LsqError('the start values lie outside the model');
-  let ssr = weightedSsr(problem, r);
+  /** Residuals and derivatives at q into the spare set; the weighted SSR there, null outside the
+   * model. Unfused, the normal equations are formed by `acceptTry` only, so a rejected trial does not
+   * pay for them. */
+  const evaluateTry = (q: Float64Array): number | null => {
+    if (fused) return fused(q, problem.weights, rTry, jtjTry, jtrTry);
+    return problem.evaluate(q, rTry, jacTry) ? weightedSsr(problem, rTry) : null;
+  };
+  const acceptTry = (): void => {
+    [r, rTry] = [rTry, r];
+    [jac, jacTry] = [jacTry, jac];
+    [jtj, jtjTry] = [jtjTry, jtj];
+    [jtr, jtrTry] = [jtrTry, jtr];
+    if (jac) normalEquations(problem, r, jac, jtj, jtr);
+  };
+  const ssrStart = evaluateTry(params);
+  if (ssrStart === null) throw new LsqError('the start values lie outside the model');
+  let ssr = ssrStart;
+  acceptTry();
   let lambda = 1e-3;
   let iterations = 0;
   let converged = false;
-  normalEquations(problem, r, jac, jtj, jtr);
   while (iterations < maxIterations) {
     iterations++;
     if (stepTolerance !== undefined) {
@@ -438,15 +472,12 @@ export function levenbergMarquardt(
         continue;
       }
       for (let a = 0; a < p; a++) trial[a] = (params[a] as number) + (step[a] as number);
-      const inside = problem.evaluate(trial, rTry, jacTry);
-      const ssrTry = inside ? weightedSsr(problem, rTry) : Infinity;
+      const ssrTry = evaluateTry(trial) ?? Infinity;
       if (ssrTry <= ssr) {
         const decrease = (ssr - ssrTry) / Math.max(ssr, Number.MIN_VALUE);
         params = Float64Array.from(trial);
         ssr = ssrTry;
-        [r, rTry] = [rTry, r];
-        [jac, jacTry] = [jacTry, jac];
-        normalEquations(problem, r, jac, jtj, jtr);
+        acceptTry();
         lambda = Math.max(lambda / 10, 1e-12);
         accepted = true;
         if (decrease < tolerance) converged = true;
