@@ -197,16 +197,34 @@ export type SweptCheckDocumentInput = Omit<z.input<typeof CheckDocumentSchema>, 
 };
 export type CheckDocument = z.output<typeof CheckDocumentSchema>;
 
-/** One point judged on its own: a meter (from the lab, or its spec inline), conditions, readings. */
-export const BudgetDocumentSchema = z.object({
-  format: z.literal('dipledger.budget/1', 'expected format "dipledger.budget/1"'),
-  meter: nonEmpty('the meter asset id'),
-  standard: nonEmpty('a lab standard asset id'),
-  conditions: ConditionsSchema,
-  reference: FrequencyText,
-  readings: z.array(ReadingSchema).min(2, 'expected at least two readings'),
-  decisionRule: DecisionRuleSchema.optional(),
-});
+/** One point judged on its own: a meter (from the lab, or its spec inline), conditions, and either
+ * the reference with readings (tune to the dip) or the dial setting with its swept trace. */
+export const BudgetDocumentSchema = z
+  .object({
+    format: z.literal('dipledger.budget/1', 'expected format "dipledger.budget/1"'),
+    meter: nonEmpty('the meter asset id'),
+    standard: nonEmpty('a lab standard asset id'),
+    conditions: ConditionsSchema,
+    reference: FrequencyText.optional(),
+    readings: z.array(ReadingSchema).optional(),
+    // Sweep method: the graduation the dial was set to, and the trace swept across the dip there.
+    dialSetting: z.union([z.string(), z.number()], 'expected a dial graduation').optional(),
+    sweep: SweepInputSchema.optional(),
+    decisionRule: DecisionRuleSchema.optional(),
+  })
+  .superRefine((d, ctx) => {
+    const issue = (path: string, message: string) => ctx.addIssue({ code: 'custom', path: [path], message });
+    if (d.sweep === undefined) {
+      if (d.reference === undefined) issue('reference', 'expected a frequency such as "9.3 GHz"');
+      if ((d.readings ?? []).length < 2) issue('readings', 'expected at least two readings');
+      return;
+    }
+    if (d.dialSetting === undefined) issue('dialSetting', 'expected the graduation the dial was set to');
+    if (d.readings !== undefined && d.readings.length > 0)
+      issue('readings', 'expected no readings with a sweep (the sweep is the reading)');
+    if (d.reference !== undefined)
+      issue('reference', 'expected no reference with a sweep (the fitted resonance is the reference)');
+  });
 export type BudgetDocumentInput = z.input<typeof BudgetDocumentSchema>;
 
 export const AirSchema = z.object({

@@ -844,14 +844,32 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
       const cert =
         certificateOn(std as StandardRecord, clock.today()) ?? (std as StandardRecord).certificates[0];
       if (!cert) throw LabError.field('standard', doc.standard, 'a standard with a certificate');
-      const referenceHz = frequencyOrIssue(issues, doc.reference, 'reference');
+      if (doc.sweep !== undefined) {
+        // A swept point: the resonance fitted to the trace is the reference, judged as recorded.
+        const swept = prepareSweepPoint({
+          issues,
+          field: 'point',
+          point: { phase: 'as-found', dialSetting: doc.dialSetting, sweep: doc.sweep },
+          method: 'sweep',
+          meter: m,
+          conditions: conditionsOf(doc, settings),
+          standards: [{ record: std as StandardRecord, certificate: cert }],
+          listedStandards: [doc.standard],
+          rule: doc.decisionRule ?? settings.decisionRule,
+          readingValue,
+        });
+        issues.throwIfAny();
+        if (!swept) throw new LabError('internal', 'a swept point was neither judged nor refused');
+        return swept.result;
+      }
+      const referenceHz = frequencyOrIssue(issues, doc.reference ?? '', 'reference');
       if (referenceHz !== undefined) {
         const out = checkInBand(referenceHz, m.minHz, m.maxHz, 'reference');
         if (out)
           issues.fromParse('reference', doc.reference, out, `a frequency inside the band of ${m.assetId}`);
       }
       const readings: Reading[] = [];
-      doc.readings.forEach((r, j) => {
+      (doc.readings ?? []).forEach((r, j) => {
         const v = readingValue(issues, m, r.value, `readings[${j}].value`);
         if (v !== undefined) readings.push({ value: v, direction: r.direction });
       });

@@ -891,7 +891,7 @@ function Review({ form, verdicts, lab }: { form: CheckForm; verdicts: PointResul
     <div className="review" data-testid="review">
       <p>
         {form.method === 'sweep'
-          ? `${form.points.filter((p) => p.sweep).length} of ${form.points.length} points have a trace attached; swept points are judged when recorded`
+          ? `${form.points.filter((p) => p.sweep).length} of ${form.points.length} points have a trace attached`
           : `${verdicts.length} of ${form.points.length} points judged`}
         {verdicts.length > 0 && ': '}
         {[...counts.entries()]

@@ -1,16 +1,20 @@
 // The points of a check by the sweep method: at each plan point the dial is set to a graduation and
 // the source is swept across the dip; the trace file (Touchstone or delimited) is attached here and
-// fitted at once, with the fitted dip drawn over the trace. The verdict is computed when recorded,
-// after the air and thermal corrections, as for every check.
+// fitted at once, with the fitted dip drawn over the trace, and judged live (air and thermal
+// corrections, the fit's u(f0) in the budget) exactly as recording will judge it.
 import { useEffect, useId, useRef, useState } from 'react';
 import type { LabApi } from '../../app/api/contract';
 import type { TraceFit } from '../../app/api/contract-sweep';
+import type { PointResult } from '../../app/engine/model';
+import { sweptBudgetDocument, sweptReadyToJudge } from './checkForm';
 import type { CheckForm, FormPoint } from './checkForm';
 import { DipChart } from './DipChart';
-import { formatHz, formatPpm } from './format';
+import { VERDICT_LABEL, formatHz, formatPpm } from './format';
 import { messageOf } from './useLoad';
 
 type FitState = { kind: 'fitting' } | { kind: 'ok'; fit: TraceFit } | { kind: 'failed'; message: string };
+type Judgement =
+  { kind: 'judging' } | { kind: 'ok'; result: PointResult } | { kind: 'failed'; message: string };
 
 /** Trace files are text; a bigger file is surely not a sweep (a 10,001-point .s2p is about 1 MB). */
 const MAX_TRACE_BYTES = 8 * 1024 * 1024;
@@ -55,6 +59,36 @@ export function SweptPoints({
     // Keyed on the trace texts themselves.
   }, [api, texts.join('\u0000')]);
 
+  // Each swept point is judged live once it has what the budget needs, as recording would judge it.
+  const [judged, setJudged] = useState<Record<number, { key: string; state: Judgement }>>({});
+  const judgedRef = useRef(judged);
+  judgedRef.current = judged;
+  const judgeKeys = form.points.map((p) =>
+    sweptReadyToJudge(form, p) ? JSON.stringify(sweptBudgetDocument(form, p, unit)) : '',
+  );
+  useEffect(() => {
+    const timer = setTimeout(() => {
+      judgeKeys.forEach((key, i) => {
+        if (!key || judgedRef.current[i]?.key === key) return;
+        setJudged((m) => ({ ...m, [i]: { key, state: { kind: 'judging' } } }));
+        api
+          .evaluateBudget(JSON.parse(key) as never)
+          .then((result) =>
+            setJudged((m) => (m[i]?.key === key ? { ...m, [i]: { key, state: { kind: 'ok', result } } } : m)),
+          )
+          .catch((e: unknown) =>
+            setJudged((m) =>
+              m[i]?.key === key
+                ? { ...m, [i]: { key, state: { kind: 'failed', message: messageOf(e) } } }
+                : m,
+            ),
+          );
+      });
+    }, 300);
+    return () => clearTimeout(timer);
+    // Keyed on the budget documents themselves.
+  }, [api, judgeKeys.join('\u0001')]);
+
   async function attach(i: number, file: File | undefined) {
     if (!file) return;
     if (file.size > MAX_TRACE_BYTES) {
@@ -82,6 +116,7 @@ export function SweptPoints({
             point={p}
             unit={unit}
             fit={f && f.text === p.sweep?.text ? f.state : undefined}
+            judged={judgeKeys[i] && judged[i]?.key === judgeKeys[i] ? judged[i]?.state : undefined}
             onDial={(v) => setPoint(i, (q) => ({ ...q, dialSetting: v }))}
             onFile={(file) => void attach(i, file)}
             onRemove={() => setPoint(i, (q) => ({ ...q, sweep: undefined }))}
@@ -97,11 +132,12 @@ function SweptPoint(props: {
   point: FormPoint;
   unit: string;
   fit: FitState | undefined;
+  judged: Judgement | undefined;
   onDial: (v: string) => void;
   onFile: (f: File | undefined) => void;
   onRemove: () => void;
 }) {
-  const { index, point, unit, fit, onDial, onFile, onRemove } = props;
+  const { index, point, unit, fit, judged, onDial, onFile, onRemove } = props;
   const dialId = useId();
   const fileId = useId();
   const label = `point ${index + 1} (${point.reference || 'no plan frequency'})`;
@@ -164,9 +200,34 @@ function SweptPoint(props: {
               </>
             )}
           </p>
+          <SweptVerdict judged={judged} />
           <DipChart fit={fit.fit} name={point.sweep.name} />
         </>
       )}
     </li>
+  );
+}
+
+function SweptVerdict({ judged }: { judged: Judgement | undefined }) {
+  if (!judged)
+    return <p className="muted">Type the bench conditions and choose a standard to see the verdict.</p>;
+  if (judged.kind === 'judging') return <p className="status">Judging…</p>;
+  if (judged.kind === 'failed')
+    return (
+      <p className="status error" role="alert">
+        <span aria-hidden="true">✗ </span>
+        {judged.message}
+      </p>
+    );
+  const r = judged.result;
+  const v = VERDICT_LABEL[r.decision.verdict];
+  return (
+    <p className="swept-verdict" data-testid="swept-verdict">
+      Error {formatPpm(r.errorPpm)} after corrections, U = {r.expandedPpm.toFixed(1)} ppm (k ={' '}
+      {r.budget.coverageFactor.toFixed(2)}):{' '}
+      <strong className={`verdict v-${r.decision.verdict}`}>
+        {v.symbol} {v.word}
+      </strong>
+    </p>
   );
 }

@@ -264,3 +264,34 @@ export function budgetDocument(form: CheckForm, p: FormPoint, unit: string): Rec
 export function anyReadingTyped(form: CheckForm): boolean {
   return form.points.some((p) => [...p.up, ...p.down].some((v) => v.trim() !== ''));
 }
+
+/** What a swept point needs before it can be judged live: its trace, a dial setting, the three
+ * conditions and a standard. */
+export function sweptReadyToJudge(form: CheckForm, p: FormPoint): boolean {
+  const conditionsTyped = [form.temperatureC, form.pressureHpa, form.humidityPct].every(
+    (v) => Number.isFinite(Number(v)) && v.trim() !== '',
+  );
+  return (
+    p.sweep !== undefined &&
+    (p.dialSetting ?? '').trim() !== '' &&
+    conditionsTyped &&
+    form.meter !== '' &&
+    (p.standard !== '' || form.standards.length > 0)
+  );
+}
+
+/** The budget document (dipledger.budget/1) of a swept point: dial setting and trace. */
+export function sweptBudgetDocument(form: CheckForm, p: FormPoint, unit: string): Record<string, unknown> {
+  return {
+    format: 'dipledger.budget/1',
+    meter: form.meter,
+    standard: p.standard || form.standards[0],
+    conditions: {
+      temperatureC: Number(form.temperatureC),
+      pressureHpa: Number(form.pressureHpa),
+      humidityPct: Number(form.humidityPct),
+    },
+    dialSetting: readingValue(p.dialSetting ?? '', unit),
+    sweep: { name: p.sweep?.name, text: p.sweep?.text },
+  };
+}

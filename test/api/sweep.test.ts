@@ -94,6 +94,31 @@ describe('recording a check by the sweep method', () => {
     lab.close();
   });
 
+  it('judges a swept point on its own (the record form, live) exactly as recording it does', async () => {
+    const lab = await seededLab();
+    const doc = sweptCheck([{ dialSetting: '10 GHz', sweep: { text: traceCsv(4), name: 'p4.csv' } }]);
+    const budget = {
+      format: 'dipledger.budget/1' as const,
+      meter: doc.meter,
+      standard: doc.standards[0] as string,
+      conditions: doc.conditions,
+      dialSetting: '10 GHz',
+      sweep: { text: traceCsv(4), name: 'p4.csv' },
+    };
+    const live = await lab.api.evaluateBudget(budget);
+    const rec = await lab.api.recordCheck(doc as never);
+    expect(live).toEqual(rec.points[0]?.result);
+    expect(live.budget.contributions.map((c) => c.key)).toContain('fit');
+    // A sweep with readings, or without its dial setting, is refused by name.
+    const both = await refusal(
+      lab.api.evaluateBudget({ ...budget, readings: [{ value: '10 GHz', direction: 'up' }] }),
+    );
+    expect(both.issues.map((i) => i.field)).toEqual(['readings']);
+    const noDial = await refusal(lab.api.evaluateBudget({ ...budget, dialSetting: undefined }));
+    expect(noDial.issues.map((i) => i.field)).toEqual(['dialSetting']);
+    lab.close();
+  });
+
   it('refuses a malformed trace naming the point and the line, and writes nothing', async () => {
     const lab = await seededLab();
     const before = await fingerprint(lab.api);

@@ -200,7 +200,12 @@ const TRACE = ['! invented trace', '# GHz S DB R 50']
 describe('the sweep method in the record form', () => {
   it('attaches a trace to a point, fits it and draws the fitted dip', async () => {
     const fits: unknown[] = [];
+    const judged: Record<string, unknown>[] = [];
     const bench = fakeBench({
+      evaluateBudget: (doc) => {
+        judged.push(doc);
+        return Promise.resolve(structuredClone(BENCH_CHECKS[0]!.points[0]!.result));
+      },
       fitTrace: (input) => {
         fits.push(input);
         const fit: TraceFit = {
@@ -242,6 +247,10 @@ describe('the sweep method in the record form', () => {
     });
     render(<RecordCheckPage api={bench.api} assetId="WM-003" />);
     await screen.findByTestId('meter-brief');
+    type(screen.getByLabelText('Temperature / °C'), '21.5');
+    type(screen.getByLabelText('Pressure / hPa'), '1009');
+    type(screen.getByLabelText('Relative humidity / %RH'), '44');
+    fireEvent.click(screen.getByRole('checkbox', { name: /SRC-1/ }));
     fireEvent.click(screen.getByRole('radio', { name: /Swept/ }));
     const points = await screen.findByTestId('swept-points');
     const first = within(points).getAllByRole('listitem')[0]!;
@@ -257,6 +266,19 @@ describe('the sweep method in the record form', () => {
     ).toBeTruthy();
     expect(fits).toEqual([{ text: TRACE, name: 'dip-8g5.s2p' }]);
     expect(screen.getByTestId('review').textContent).toContain('1 of 3 points have a trace attached');
+    // Judged live as recording will judge it: the dial setting and the trace go to the budget.
+    const verdict = await within(first).findByTestId('swept-verdict');
+    expect(verdict.textContent).toMatch(
+      /^Error [+−]\d+\.\d ppm after corrections, U = \d+\.\d ppm \(k = \d\.\d\d\): /,
+    );
+    expect(judged.at(-1)).toMatchObject({
+      format: 'dipledger.budget/1',
+      meter: 'WM-003',
+      standard: 'SRC-1',
+      dialSetting: '8.5 GHz',
+      sweep: { name: 'dip-8g5.s2p', text: TRACE },
+    });
+    expect(judged.at(-1)).not.toHaveProperty('readings');
   });
 
   it('writes swept points as dial setting and trace, and reads them back from a draft', () => {

@@ -322,6 +322,8 @@ describe.skipIf(!haveChromium)(
       await shell.go('Record a check');
       const form = new RecordCheckPage(page);
       await form.chooseMeter('WG-201');
+      await form.useStandard('STD-01');
+      await form.conditions('21.4', '1010.2', '45');
       await page.getByRole('radio', { name: /Swept/ }).check();
       const point = page.locator('[data-testid="swept-points"] li[data-point="2"]');
       expect(await point.getByLabel(/dial set to \/ GHz/).inputValue()).toBe('9.3');
@@ -333,6 +335,12 @@ describe.skipIf(!haveChromium)(
       // Within 1 % of the linewidth (6.2 MHz) of the invented resonance.
       const fittedGhz = Number(/resonance at (\d+\.\d+) GHz/.exec(said)?.[1]);
       expect(Math.abs(fittedGhz * 1e9 - f0)).toBeLessThan(0.01 * w);
+      // Judged live: the dial 200 kHz below the resonance is about −21.5 ppm before corrections.
+      const verdict = point.getByTestId('swept-verdict');
+      await verdict.waitFor();
+      expect(await verdict.innerText()).toMatch(
+        /^Error −\d+\.\d ppm after corrections, U = \d+\.\d ppm \(k = \d\.\d\d\): ✓ Pass$/,
+      );
       const chart = point.getByRole('figure', { name: 'Swept trace wg201-9g3.csv with the fitted dip' });
       // The measured points and the fitted curve are both drawn, with units on the axes.
       expect(await chart.locator('.recharts-scatter-symbol').count()).toBeGreaterThan(200);
