@@ -41,6 +41,19 @@ export function resolveSweepFiles(doc: unknown, documentDir: string): unknown {
   return { ...doc, points };
 }
 
+/** The same for a budget document's one swept point (`sweep.file` at the top level). */
+export function resolveBudgetSweepFile(doc: unknown, documentDir: string): unknown {
+  const sweep = (doc as { sweep?: unknown } | null)?.sweep;
+  if (!sweep || typeof sweep !== 'object') return doc;
+  const file = (sweep as { file?: unknown }).file;
+  if (typeof file !== 'string' || (sweep as { text?: unknown }).text !== undefined) return doc;
+  const text = readText(file, documentDir, 'sweep.file');
+  return {
+    ...(doc as object),
+    sweep: { ...sweep, text, name: (sweep as { name?: unknown }).name ?? path.basename(file) },
+  };
+}
+
 function dipRows(fits: { role: string; fit: DipFit }[]): string {
   return table(
     ['dip', 'f0', 'u(f0)', 'QL', 'u(QL)', 'depth', 'FWHD', 'two tones', 'Q0', 'Qe'],

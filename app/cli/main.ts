@@ -17,7 +17,7 @@ import type { CliIo, CommandContext, CommandGroup } from './command';
 import { historyCommands } from './commands-history';
 import { documentCommands } from './commands-documents';
 import { recordsCommands } from './commands-records';
-import { resolveSweepFiles, sweepCommands } from './commands-sweep';
+import { resolveBudgetSweepFile, resolveSweepFiles, sweepCommands } from './commands-sweep';
 import {
   UsageError,
   band,
@@ -187,7 +187,12 @@ export async function runCli(argv: string[], io: CliIo): Promise<number> {
         return values['require-pass'] && rec.asLeftVerdict !== 'pass' ? 1 : 0;
       }
       case 'budget': {
-        const doc = readJsonFile(arg('FILE.json'), io.cwd);
+        // A swept point's trace file is read here, beside the document, as for `record`.
+        const docFile = arg('FILE.json');
+        const doc = resolveBudgetSweepFile(
+          readJsonFile(docFile, io.cwd),
+          path.dirname(path.resolve(io.cwd, docFile)),
+        );
         const res = await open().api.evaluateBudget(doc as never);
         const ref = (doc as { reference?: unknown }).reference;
         print(res, () => budgetText(res, res.correctedHz - res.errorHz) + (ref ? '' : ''));

@@ -143,3 +143,35 @@ describe('dipledger record with swept points, sweeps and chart', () => {
     expect(await runCli(['--db', file, 'chart', 'TW-01'], d)).toBe(2);
   });
 });
+
+describe('dipledger budget with a swept point', () => {
+  it('reads the trace file beside the document and judges the point as recording would', async () => {
+    const { dir, file } = await labDir();
+    writeFileSync(path.join(dir, 'p1.s2p'), s2p());
+    const base = goodCheck();
+    const budget = {
+      format: 'dipledger.budget/1',
+      meter: base.meter,
+      standard: base.standards[0],
+      conditions: base.conditions,
+      dialSetting: '10 GHz',
+      sweep: { file: 'p1.s2p' },
+    };
+    writeFileSync(path.join(dir, 'budget.json'), JSON.stringify(budget));
+    const o = io(dir);
+    expect(await runCli(['--db', file, '--json', 'budget', 'budget.json'], o)).toBe(0);
+    const r = decodeJson(o.stdout.join('\n')) as {
+      budget: { contributions: { key: string }[] };
+      errorHz: number;
+    };
+    expect(r.budget.contributions.map((c) => c.key)).toContain('fit');
+    // The dial at 10 GHz, the resonance near 10.004 GHz: about -4 MHz after small corrections.
+    expect(r.errorHz / 1e6).toBeGreaterThan(-6);
+    expect(r.errorHz / 1e6).toBeLessThan(-2);
+    // A missing trace file: exit 2, naming the field.
+    writeFileSync(path.join(dir, 'missing.json'), JSON.stringify({ ...budget, sweep: { file: 'nope.s2p' } }));
+    const bad = io(dir);
+    expect(await runCli(['--db', file, 'budget', 'missing.json'], bad)).toBe(2);
+    expect(bad.stderr.join('\n')).toContain('sweep.file');
+  });
+});
