@@ -350,7 +350,7 @@ export function scalarProblem(x: Float64Array, y: Float64Array): LsqProblem {
       return true;
     },
     // The same derivatives as `evaluate`, summed into J'WJ and J'Wr as they are made (the sums in the
-    // order of lsq.ts normalEquations5 and weightedSsr, so the fit's numbers are the same to the last bit).
+    // order of lsq.ts normalEquationsAny and weightedSsr, so the fit's numbers are the same to the last bit).
     normalEquations(p, w, r, jtj, jtr) {
       const x0 = p[0] as number;
       const g = p[1] as number;

@@ -7,6 +7,7 @@ import type { IssuedDocument, IssuedDocumentFile } from '../../app/api/contract-
 import type { CheckRevisionView, Signer } from '../../app/api/contract-records';
 import type { FieldIssue } from '../../app/api/errors';
 import { Cautions } from './Cautions';
+import { Problems } from './Problems';
 import { VERDICT_LABEL, formatPpm } from './format';
 import { revisionWord } from './MeterRecords';
 import { href } from './routes';
@@ -169,7 +170,8 @@ function SigningPanel(props: {
       <h2 id="sign-h">Signatures</h2>
       {view.signatures.length === 0 ? (
         <p className="muted">
-          Not signed yet: the record can still be amended without a trace of a revision.
+          Not signed yet. The first signature locks this revision; a correction is always a new revision with
+          its reason.
         </p>
       ) : (
         <ol className="plain signatures" data-testid="signatures">
@@ -348,20 +350,5 @@ function IssuedFile({ file }: { file: IssuedDocumentFile }) {
         </>
       )}
     </p>
-  );
-}
-
-function Problems({ verb, state }: { verb: string; state: { message: string; issues: FieldIssue[] } }) {
-  return (
-    <div className="problems" role="alert">
-      <p>
-        <strong>✗ {verb}; nothing was changed.</strong> {state.issues.length === 0 && state.message}
-      </p>
-      <ul>
-        {state.issues.map((i, k) => (
-          <li key={k}>{i.message}</li>
-        ))}
-      </ul>
-    </div>
   );
 }

@@ -62,7 +62,7 @@ export function ImportHistory({ api, checksPerChunk = 25 }: { api: LabApi; check
       if (stop.current) {
         setProgress({
           kind: 'stopped',
-          text: `Stopped: ${checks} of ${plan.checks} checks of ${file.name} were imported, whole; the rest were not. Importing the file again refuses the checks already in (same meter and date).`,
+          text: `Stopped: ${checks} of ${plan.checks} checks of ${file.name} were imported, whole; the rest were not. To finish, import a file of the remaining checks only: the checks already in (same meter and date) are refused, and with them the piece that holds them.`,
         });
         return;
       }

@@ -7,6 +7,7 @@ import type { FieldIssue } from '../../app/api/errors';
 import type { DecisionRule } from '../../app/engine/model';
 import { ImportHistory, IntegrityCheck } from './LongWork';
 import { PeopleSection } from './PeopleSection';
+import { Problems } from './Problems';
 import { messageOf, useLoad } from './useLoad';
 
 export function SettingsPage({ api }: { api: LabApi }) {
@@ -218,18 +219,7 @@ function SettingsForm({ api, initial }: { api: LabApi; initial: LabSettings }) {
           {status.kind === 'busy' && 'Saving…'}
         </span>
       </div>
-      {status.kind === 'failed' && (
-        <div className="problems" role="alert">
-          <p>
-            <strong>✗ Not saved; nothing was changed.</strong> {status.issues.length === 0 && status.message}
-          </p>
-          <ul>
-            {status.issues.map((i, k) => (
-              <li key={k}>{i.message}</li>
-            ))}
-          </ul>
-        </div>
-      )}
+      {status.kind === 'failed' && <Problems verb="Not saved" state={status} />}
     </form>
   );
 }
