@@ -9,6 +9,7 @@ export default tseslint.config(
       'renderer/dist/**',
       'bin/**',
       'app/desktop/*.cjs',
+      'app/api/*.mjs',
       'test-output/**',
       'tmp/**',
       'eslint.config.js',

@@ -18,6 +18,7 @@ const FILES: ReadonlyArray<readonly [number, string]> = [
   [6, '0006_summaries.sql'],
   [7, '0007_stored_summaries.sql'],
   [8, '0008_audit_index.sql'],
+  [9, '0009_cheaper_writes.sql'],
 ];
 
 function load(version: number, file: string): Migration {

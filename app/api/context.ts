@@ -11,10 +11,18 @@ import type { Clock, Issues } from './support';
 import type { PreparedCheck } from './service';
 
 /** The synchronous form of a set of operations (better-sqlite3 is synchronous); the service
- * wraps them so callers always get promises and refusals arrive as rejections. */
+ * wraps them so callers always get promises and refusals arrive as rejections. An operation may
+ * still answer with a promise where work runs on another thread (a bulk import's writer). */
 export type SyncOps<Api> = {
-  [K in keyof Api]: Api[K] extends (...args: infer A) => Promise<infer R> ? (...args: A) => R : never;
+  [K in keyof Api]: Api[K] extends (...args: infer A) => Promise<infer R>
+    ? K extends ThreadedOps
+      ? (...args: A) => R | Promise<R>
+      : (...args: A) => R
+    : never;
 };
+
+/** Operations that may hand part of their work to another thread. */
+type ThreadedOps = 'importCsv';
 
 /** A group contributes some operations of the contract. */
 export type OpGroup<K extends keyof LabApi> = (ctx: ServiceContext) => Pick<SyncOps<LabApi>, K>;

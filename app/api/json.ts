@@ -1,6 +1,7 @@
 // JSON that keeps Infinity and NaN (a Type B input with infinite degrees of freedom is common):
 // non-finite numbers travel as the strings "Infinity", "-Infinity" and "NaN".
-import { PACK_MARK, unpackPointResult } from './point-pack';
+import { PACK_MARK_1, unpackPointResult1 } from './point-pack';
+import { PACK_MARK_2, unpackPointResult2 } from './point-pack2';
 
 export function encodeJson(value: unknown, space?: number): string {
   // The same text a replacer turning non-finite numbers into strings gives, but a replacer puts
@@ -24,11 +25,15 @@ function nonFiniteAsText(v: unknown, key: string): unknown {
   return out;
 }
 
-/** The value of a JSON text; a point result stored packed (app/api/point-pack.ts) reads as the
- * result it holds. */
+/** The value of a JSON text; a point result stored packed (format 2, app/api/point-pack2.ts, or
+ * format 1, app/api/point-pack.ts) reads as the result it holds. */
 export function decodeJson(text: string): unknown {
+  if (text.startsWith(PACK_MARK_2)) {
+    const packed = unpackPointResult2(text);
+    if (packed !== undefined) return packed;
+  }
   const value: unknown = JSON.parse(text, (_key, v: unknown) =>
     v === 'Infinity' ? Infinity : v === '-Infinity' ? -Infinity : v === 'NaN' ? NaN : v,
   );
-  return text.startsWith(PACK_MARK) ? (unpackPointResult(value) ?? value) : value;
+  return text.startsWith(PACK_MARK_1) ? (unpackPointResult1(value) ?? value) : value;
 }

@@ -1,6 +1,7 @@
 // Opens a lab file and gives its LabApi; the one place shells get a service from.
 import { openLabDb, type OpenOptions } from '../../db/store';
 import type { LabApi } from './contract';
+import { closeImportWriter } from './import-writer';
 import { createLabService, type Clock } from './service';
 
 export interface OpenedLab {
@@ -14,5 +15,12 @@ export function openApi(
 ): OpenedLab {
   const db = openLabDb(file, options);
   const api = createLabService(db, { clock: options.clock, actor: options.actor });
-  return { api, close: () => db.close() };
+  return {
+    api,
+    close: () => {
+      // The import writer's own connection, if it has one, is closed by its thread.
+      void closeImportWriter(db);
+      db.close();
+    },
+  };
 }

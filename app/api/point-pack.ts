@@ -1,9 +1,12 @@
-// A compact, lossless text form of a stored point result (check_point.result_json).
+// Format 1 of the packed point result (check_point.result_json): read, never written any more.
+// New writes use format 2 (app/api/point-pack2.ts, re-exported below as packPointResult and
+// PACK_MARK); this file keeps format 1's reader for lab files written before it, and its writer so
+// tests can make such rows (test/api/point-pack.test.ts). Everything here is frozen.
 //
-// Why: a point's full evaluation (budget lines with their labels, decision, notes) is about
-// 2.8 KB of JSON, two thirds of it the budget lines, which repeat the same key names and the
-// same words in every point; at a fleet's 550,000 points that text was most of the lab file
-// (2.4 GB) and most of the time a bulk import spent in SQLite (issue 8).
+// Why format 1 was made: a point's full evaluation (budget lines with their labels, decision,
+// notes) is about 2.8 KB of JSON, two thirds of it the budget lines, which repeat the same key
+// names and the same words in every point; at a fleet's 550,000 points that text was most of the
+// lab file (2.4 GB) and most of the time a bulk import spent in SQLite (issue 8).
 //
 // The form is JSON: the result's own object, keys in their order, behind a first key "~": 1,
 // with everything as encodeJson writes it except budget.contributions, where
@@ -16,13 +19,17 @@
 // returns for a packed text is what it returns for the JSON text of the same result, key order,
 // non-finite numbers and all: signatures and documents, computed from the decoded record, cannot
 // tell them apart (test/api/point-pack.test.ts). A value the form cannot hold exactly (another
-// shape, a key "__proto__", an undefined, a class instance) is left to the caller to store as
+// shape, a key "__proto__", an undefined, a class instance) was left to the caller to store as
 // plain JSON. Rows written before this form read as before.
 //
-// The tables below belong to format 1 and never change once shipped; a new entry means a new
-// format number, which an older reader leaves undecoded rather than misreads.
-/** How a packed text begins; no result stored as plain JSON begins so (its first key is meanDial). */
-export const PACK_MARK = '{"~":1,';
+// The tables below belong to format 1 and never change; a new entry means a new format number,
+// which an older reader leaves undecoded rather than misreads.
+
+/** What new writes store (format 2): the writer, and how its texts begin. */
+export { packPointResult2 as packPointResult, PACK_MARK_2 as PACK_MARK } from './point-pack2';
+
+/** How a format-1 text begins; no result stored as plain JSON begins so (its first key is meanDial). */
+export const PACK_MARK_1 = '{"~":1,';
 
 const RESULT_KEYS = [
   'meanDial',
@@ -230,9 +237,10 @@ function plain(v: unknown): unknown {
   }
 }
 
-/** The packed text of a point result, or undefined when the form cannot hold it exactly (the
- * caller then stores the result as JSON with encodeJson). */
-export function packPointResult(value: unknown): string | undefined {
+/** The format-1 text of a point result, or undefined when the form cannot hold it exactly (the
+ * caller then stores the result as JSON with encodeJson). Not used to write any more: kept, frozen,
+ * so tests can write rows as older code did. */
+export function packPointResult1(value: unknown): string | undefined {
   if (!plainObject(value) || !keysAre(value, RESULT_KEYS)) return undefined;
   const budget = value.budget;
   if (!plainObject(budget) || !keysAre(budget, BUDGET_KEYS) || !Array.isArray(budget.contributions))
@@ -307,7 +315,7 @@ function unpack(v: unknown): unknown {
 
 /** The result a packed text holds, from the text JSON.parse (with decodeJson's reading of
  * non-finite numbers) made of it; undefined when it is not the packed form after all. */
-export function unpackPointResult(parsed: unknown): unknown {
+export function unpackPointResult1(parsed: unknown): unknown {
   if (!plainObject(parsed) || parsed['~'] !== 1) return undefined;
   const own = Object.keys(parsed);
   if (own.length !== RESULT_KEYS.length + 1 || !RESULT_KEYS.every((k, i) => own[i + 1] === k))

@@ -29,9 +29,18 @@ import {
   setMeterState,
   type MeterRecord,
 } from '../../db/queries/meters';
-import { allCheckIds, findCheckId, getCheck, insertCheck, listCheckSummaries } from '../../db/queries/checks';
+import {
+  allCheckIds,
+  findCheckId,
+  getCheck,
+  listCheckSummaries,
+  revisionRowData,
+} from '../../db/queries/checks';
+import { writeCheckRows, type CheckWrite } from './check-write';
+import { importWriterFor } from './import-writer';
 import { appendAudit } from '../../db/queries/audit';
-import { insertSweeps, type SweepData } from '../../db/queries/sweeps';
+import { checkDatesOfMeter } from '../../db/queries/check-dates';
+import type { SweepData } from '../../db/queries/sweeps';
 import { prepareSweepPoint } from './sweep-points';
 import type {
   AirResult,
@@ -108,11 +117,18 @@ export interface PreparedCheck {
 }
 
 /** Records a bulk import reads for every check and no check changes (the lab's settings, meters,
- * standards), looked up once per import instead of once per check. */
+ * standards, people), looked up once per import instead of once per check. A performer the
+ * import itself creates stays "not found" here for the rest of the import: writeCheck finds or
+ * creates them by name, so every check still gets the one person. */
 interface ImportLookups {
   settings?: LabSettings;
   meters: Map<string, MeterRecord | undefined>;
   standards: Map<string, StandardRecord | undefined>;
+  /** Made on first use. */
+  people?: Map<string, Person | undefined>;
+  /** By meter asset id: the dates of its checks in the file, and of those this import prepared
+   * (made on first use). A date not there cannot be a duplicate, so the check is not looked up. */
+  checkDates?: Map<string, Set<string>>;
 }
 
 function lookedUp<T>(memo: Map<string, T> | undefined, key: string, find: () => T): T {
@@ -127,6 +143,9 @@ export interface ServiceOptions {
   clock?: Clock;
   /** Who the operations are recorded as in the audit trail until people sign in (records issue). */
   actor?: string;
+  /** The fewest checks an import hands to a writer thread (WRITER_THREAD_MIN_CHECKS; Infinity:
+   * never, as for a lab with no file of its own). */
+  writerThreadMinChecks?: number;
 }
 
 export function createLabService(db: LabDb, options: ServiceOptions = {}): LabApi {
@@ -306,7 +325,11 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
         `${f('date')}: ${doc.date} is in the future (today is ${today})`,
       );
     }
-    const performer = findPersonByName(db, doc.performer);
+    const performer = lookedUp(
+      lookups && (lookups.people ??= new Map<string, Person | undefined>()),
+      doc.performer,
+      () => findPersonByName(db, doc.performer),
+    );
     if (!performer && !options.createPerformer) {
       const known = listPeople(db).map((p) => p.name);
       issues.add(
@@ -460,7 +483,12 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
         `${f('adjusted')}: as-left points are given but adjusted is false`,
       );
     }
-    const dup = findCheckId(db, meter.id, doc.date);
+    const dates =
+      lookups &&
+      lookedUp((lookups.checkDates ??= new Map<string, Set<string>>()), doc.meter, () =>
+        checkDatesOfMeter(db, meter.id),
+      );
+    const dup = dates && !dates.has(doc.date) ? undefined : findCheckId(db, meter.id, doc.date);
     if (dup !== undefined && dup !== options.amendingCheckId) {
       issues.add(
         f('date'),
@@ -470,6 +498,8 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
       );
     }
     issues.throwIfAny();
+    // Written next: a later check of this import on the same meter and date is looked up.
+    dates?.add(doc.date);
 
     const found = points.filter((p) => p.phase === 'as-found');
     const left = doc.adjusted ? points.filter((p) => p.phase === 'as-left') : found;
@@ -494,29 +524,29 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
 
   /** `settings`: the lab's, when the caller already read them (a bulk import, once per file). */
   function writeCheck(c: PreparedCheck, action: string, settings?: LabSettings): number {
-    const at = clock.now();
-    const performer =
-      c.performer ??
-      findPersonByName(db, c.doc.performer) ??
-      insertPerson(db, { name: c.doc.performer, role: 'technician' }, at);
+    return writeCheckRows(db, checkWriteOf(c, action, settings));
+  }
+
+  /** A prepared check as the rows written for it (packed results included). */
+  function checkWriteOf(c: PreparedCheck, action: string, settings?: LabSettings): CheckWrite {
     const rule = (settings ?? lab()).decisionRule;
-    const checkId = insertCheck(db, revisionRows(c, performer.id, rule), at);
-    insertSweeps(db, checkId, sweepRows(c));
-    appendAudit(db, {
-      at,
+    // The performer's id is settled where the check is written (writeCheckRows).
+    const { performerId, ...revision } = revisionRowData(revisionRows(c, c.performer?.id ?? 0, rule));
+    return {
+      at: clock.now(),
       actor,
       action,
-      entity: 'check',
-      entityId: String(checkId),
-      before: undefined,
-      after: {
+      performerId: c.performer ? performerId : undefined,
+      performerName: c.doc.performer,
+      revision,
+      sweeps: sweepRows(c),
+      audit: {
         meter: c.meter.meter.assetId,
         date: c.doc.date,
         asFound: c.asFoundVerdict,
         asLeft: c.asLeftVerdict,
       },
-    });
-    return checkId;
+    };
   }
 
   // What operation groups in other files may use; they get the same validation and helpers.
@@ -912,19 +942,46 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
         pointsImported: 0,
       };
       const lookups: ImportLookups = { meters: new Map(), standards: new Map() };
+      const count = (p: PreparedCheck) => {
+        result.checksImported += 1;
+        result.pointsImported += p.points.length;
+      };
       // Each check is validated and written in turn inside the one transaction, so only one
       // computed check is held at a time; a refusal anywhere rolls the whole import back, and
       // nothing an earlier check writes (its rows, a new performer) changes how a later one is
       // judged, so every stored result is the one validating all before writing gave.
-      db.transaction(() => {
-        for (const d of docs) {
-          const p = prepareCheckAtLine(d, lookups);
-          writeCheck(p, 'import', lookups.settings);
-          result.checksImported += 1;
-          result.pointsImported += p.points.length;
+      const inOwnTransaction = () => {
+        db.transaction(() => {
+          for (const d of docs) {
+            const p = prepareCheckAtLine(d, lookups);
+            writeCheck(p, 'import', lookups.settings);
+            count(p);
+          }
+        })();
+        return result;
+      };
+      if (docs.length < (options.writerThreadMinChecks ?? WRITER_THREAD_MIN_CHECKS))
+        return inOwnTransaction();
+      // A large import is written by a thread of its own while this one prepares the next check
+      // (import-writer.ts): the same rows, in the same order, in one transaction.
+      return importWriterFor(db).then(async (writer) => {
+        if (!writer) return inOwnTransaction();
+        writer.begin();
+        try {
+          for (const d of docs) {
+            const p = prepareCheckAtLine(d, lookups);
+            writer.write(checkWriteOf(p, 'import', lookups.settings));
+            count(p);
+          }
+        } catch (e) {
+          // The refusal is the answer; a writer that cannot even roll back has lost its
+          // transaction with its connection anyway.
+          await writer.rollback().catch(() => undefined);
+          throw e;
         }
-      })();
-      return result;
+        await writer.commit();
+        return result;
+      });
     },
 
     exportCsv() {
@@ -1000,18 +1057,54 @@ type SyncLabApi = SyncOps<LabApi>;
 
 function asyncApi(sync: SyncLabApi): LabApi {
   const out: Record<string, (...args: unknown[]) => Promise<unknown>> = {};
+  // A write that another thread is still finishing (a bulk import's writer) holds back the
+  // writes asked for after it, so they happen in the order they were asked for and none waits on
+  // the file's lock while blocking the thread that must finish the first; reads go on meanwhile
+  // and see the file as it was before it.
+  let tail: Promise<unknown> | undefined;
+  const holdWritesUntil = (p: Promise<unknown>) => {
+    const settled = p.then(
+      () => undefined,
+      () => undefined,
+    );
+    tail = settled;
+    void settled.then(() => {
+      if (tail === settled) tail = undefined;
+    });
+  };
   for (const op of Object.keys(OPERATIONS) as OperationName[]) {
     const fn = sync[op] as (...args: unknown[]) => unknown;
-    out[op] = (...args: unknown[]) => {
+    /** The answer, and whether work on it goes on after this call returned. */
+    const call = (args: unknown[]): { answer: Promise<unknown>; ongoing: boolean } => {
       try {
-        return Promise.resolve(fn(...args));
+        const value = fn(...args);
+        return value instanceof Promise
+          ? { answer: value, ongoing: true }
+          : { answer: Promise.resolve(value), ongoing: false };
       } catch (e) {
-        return Promise.reject(e instanceof Error ? e : new Error(String(e)));
+        return { answer: Promise.reject(e instanceof Error ? e : new Error(String(e))), ongoing: false };
       }
     };
+    out[op] =
+      OPERATIONS[op] === 'write'
+        ? (...args: unknown[]) => {
+            if (!tail) {
+              const { answer, ongoing } = call(args);
+              if (ongoing) holdWritesUntil(answer);
+              return answer;
+            }
+            const answer = tail.then(() => call(args).answer);
+            holdWritesUntil(answer);
+            return answer;
+          }
+        : (...args: unknown[]) => call(args).answer;
   }
   return out as unknown as LabApi;
 }
+
+/** Below this many checks an import is written in the service's own transaction: starting the
+ * writer thread (loading its code) costs more than it saves on a few hundred milliseconds. */
+export const WRITER_THREAD_MIN_CHECKS = 100;
 
 /** The history CSV: its columns and its rows as check documents (app/api/import-csv.ts). */
 export { CSV_COLUMNS, csvToDocuments };

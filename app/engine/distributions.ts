@@ -16,17 +16,26 @@ export function tQuantile(p: number, dof: number): number {
   if (dof === Infinity) return stdlibNormalQuantile(p, 0, 1);
   // The same few (p, dof) pairs come back thousands of times (drift predictions, budgets), and
   // each inversion of the incomplete beta costs tens of microseconds: remember the answers.
-  const key = `${p}|${dof}`;
-  const known = T_QUANTILES.get(key);
+  // Keyed by the numbers themselves: writing p as text for a key cost more than the lookup.
+  let byDof = T_QUANTILES.get(p);
+  const known = byDof?.get(dof);
   if (known !== undefined) return known;
-  if (T_QUANTILES.size >= T_QUANTILE_MEMO_SIZE) T_QUANTILES.clear();
+  if (T_QUANTILE_COUNT >= T_QUANTILE_MEMO_SIZE) {
+    T_QUANTILES.clear();
+    T_QUANTILE_COUNT = 0;
+    byDof = undefined;
+  }
   const t = stdlibTQuantile(p, dof);
-  T_QUANTILES.set(key, t);
+  if (!byDof) T_QUANTILES.set(p, (byDof = new Map<number, number>()));
+  byDof.set(dof, t);
+  T_QUANTILE_COUNT++;
   return t;
 }
 
 const T_QUANTILE_MEMO_SIZE = 4096;
-const T_QUANTILES = new Map<string, number>();
+/** p -> dof -> t; a Map treats -0 as 0 and NaN as NaN, as the text keys did. */
+const T_QUANTILES = new Map<number, Map<number, number>>();
+let T_QUANTILE_COUNT = 0;
 
 export function normalCdf(x: number, mu = 0, sigma = 1): number {
   return stdlibNormalCdf(x, mu, sigma);
@@ -45,9 +54,22 @@ export function coverageFactor(dof: number, p: number = DEFAULT_COVERAGE_PROBABI
   if (!(p > 0 && p < 1)) throw new Error(`coverage probability must lie strictly between 0 and 1 (got ${p})`);
   if (Number.isNaN(dof)) throw new Error('degrees of freedom is NaN');
   const q = (1 + p) / 2;
-  if (dof === Infinity) return normalQuantile(q);
+  if (dof === Infinity) return normalCoverage(q);
   // Truncate, but let a value a rounding error short of an integer count as that integer.
   const nu = Math.floor(dof + 1e-9);
   if (nu < 1) throw new Error(`degrees of freedom must be at least 1 to find a coverage factor (got ${dof})`);
   return tQuantile(q, nu);
 }
+
+/** The standard normal quantile at q, remembered: every budget with no finite degrees of freedom
+ * asks for the same one or two (a bulk import, once per point; issue 8). */
+function normalCoverage(q: number): number {
+  const known = NORMAL_QUANTILES.get(q);
+  if (known !== undefined) return known;
+  if (NORMAL_QUANTILES.size >= T_QUANTILE_MEMO_SIZE) NORMAL_QUANTILES.clear();
+  const z = normalQuantile(q);
+  NORMAL_QUANTILES.set(q, z);
+  return z;
+}
+
+const NORMAL_QUANTILES = new Map<number, number>();

@@ -67,7 +67,9 @@ function validate(spec: MeterSpec, conditions: Conditions, point: PointInput): v
   if (!Array.isArray(point.readings) || point.readings.length === 0)
     throw new Error('point.readings: at least one reading is needed');
   point.readings.forEach((r, i) => {
-    requireFinite(r.value, `point.readings[${i}].value`);
+    // The field named only when there is something to say about it.
+    if (typeof r.value !== 'number' || !Number.isFinite(r.value))
+      requireFinite(r.value, `point.readings[${i}].value`);
     if (r.direction !== 'up' && r.direction !== 'down') {
       throw new Error(`point.readings[${i}].direction must be 'up' or 'down' (got ${String(r.direction)})`);
     }
@@ -96,7 +98,7 @@ export function evaluatePoint(
   const toHz = (dial: number, field: string): number =>
     chart ? frequencyAtDivisions(chart, dial, field) : dial;
   // Every reading must lie on the chart, not only the means: say which one does not.
-  point.readings.forEach((r, i) => toHz(r.value, `point.readings[${i}]`));
+  if (chart) point.readings.forEach((r, i) => toHz(r.value, `point.readings[${i}]`));
 
   // Direction means, in dial units, then through the chart.
   const byDirection = new Map<Direction, number[]>();

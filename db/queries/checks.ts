@@ -5,6 +5,7 @@ import { decodeJson, encodeJson } from '../../app/api/json';
 import { packPointResult } from '../../app/api/point-pack';
 import type { LabDb } from '../store';
 import { cachedStatement } from '../statements';
+import { combinedHzCell, type CombinedHzCell } from './point-combined';
 
 export interface NewCheckRevision {
   meterId: number;
@@ -35,8 +36,55 @@ export interface NewCheckRevision {
   amendment?: { reason: string; by: string };
 }
 
+/** A point as the store writes it: its columns, its result as the stored text, its readings.
+ * Made apart from the insert so that a bulk import can make it on one thread and write it on
+ * another (app/api/import-writer.ts); plain data, so it crosses between threads as it is. */
+export interface PointRowData {
+  phase: 'as-found' | 'as-left';
+  referenceHz: number;
+  standardId: number;
+  dipDepthDb: number | null;
+  errorHz: number;
+  errorPpm: number;
+  expandedHz: number;
+  coverageK: number;
+  toleranceHz: number;
+  verdict: Verdict;
+  resultText: string;
+  /** result.budget.combinedHz as check_point.combined_hz holds it (point-combined.ts). */
+  combinedHz: CombinedHzCell;
+  readings: Reading[];
+}
+
+/** A revision as the store writes it (see PointRowData). */
+export type RevisionRowData = Omit<NewCheckRevision, 'points'> & { points: PointRowData[] };
+
+export function pointRowData(p: NewCheckRevision['points'][number]): PointRowData {
+  return {
+    phase: p.phase,
+    referenceHz: p.referenceHz,
+    standardId: p.standardId,
+    dipDepthDb: p.dipDepthDb,
+    errorHz: p.result.errorHz,
+    errorPpm: p.result.errorPpm,
+    expandedHz: p.result.budget.expandedHz,
+    coverageK: p.result.budget.coverageFactor,
+    toleranceHz: p.result.decision.toleranceHz,
+    verdict: p.result.decision.verdict,
+    // Packed (budget lines shortened): the same value when read back, see point-pack.ts.
+    resultText: packPointResult(p.result) ?? encodeJson(p.result),
+    combinedHz: combinedHzCell(p.result.budget.combinedHz),
+    readings: p.readings,
+  };
+}
+
+export function revisionRowData(c: NewCheckRevision): RevisionRowData {
+  const { points, ...revision } = c;
+  return { ...revision, points: points.map(pointRowData) };
+}
+
 /** Writes a new check (revision 1, unsigned) and returns its id. Call inside a transaction. */
-export function insertCheck(db: LabDb, c: NewCheckRevision, recordedAt: string): number {
+export function insertCheck(db: LabDb, c: NewCheckRevision | RevisionRowData, recordedAt: string): number {
   const checkId = Number(
     cachedStatement(db, 'INSERT INTO check_event (meter_id, created_at) VALUES (?, ?)').run(
       c.meterId,
@@ -53,7 +101,7 @@ export function insertRevision(
   db: LabDb,
   checkId: number,
   revision: number,
-  c: NewCheckRevision,
+  c: NewCheckRevision | RevisionRowData,
   recordedAt: string,
 ): number {
   const exceptions = c.traceabilityExceptions?.length ? JSON.stringify(c.traceabilityExceptions) : null;
@@ -98,9 +146,11 @@ export function insertRevision(
   const pt = cachedStatement(
     db,
     `INSERT INTO check_point (revision_id, seq, phase, reference_hz, standard_id, dip_depth_db, error_hz, error_ppm,
-       expanded_hz, coverage_k, tolerance_hz, verdict, result_json) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
+       expanded_hz, coverage_k, tolerance_hz, verdict, result_json, combined_hz)
+       VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
   );
-  c.points.forEach((p, i) => {
+  c.points.forEach((point, i) => {
+    const p = 'resultText' in point ? point : pointRowData(point);
     const pointId = Number(
       pt.run(
         revisionId,
@@ -109,14 +159,14 @@ export function insertRevision(
         p.referenceHz,
         p.standardId,
         p.dipDepthDb,
-        p.result.errorHz,
-        p.result.errorPpm,
-        p.result.budget.expandedHz,
-        p.result.budget.coverageFactor,
-        p.result.decision.toleranceHz,
-        p.result.decision.verdict,
-        // Packed (budget lines shortened): the same value when read back, see point-pack.ts.
-        packPointResult(p.result) ?? encodeJson(p.result),
+        p.errorHz,
+        p.errorPpm,
+        p.expandedHz,
+        p.coverageK,
+        p.toleranceHz,
+        p.verdict,
+        p.resultText,
+        p.combinedHz,
       ).lastInsertRowid,
     );
     insertReadings(db, pointId, p.readings);

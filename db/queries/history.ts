@@ -6,11 +6,12 @@ import { decodeJson } from '../../app/api/json';
 import type { Statement } from 'better-sqlite3';
 import type { LabDb } from '../store';
 import { cachedStatement } from '../statements';
+import { combinedHzOfCell, type CombinedHzCell } from './point-combined';
 
 /** One stored point as history analysis sees it: the numbers it reads of the point's stored
  * result. Each is the very number in result_json (the columns are written from the same result,
- * and combinedHz is the JSON text of that value), so the analysis gives the answers it gave
- * when it decoded the whole result (about 2.7 kB of JSON per point). */
+ * and COMBINED_HZ_SQL gives that value or its JSON text, see point-combined.ts), so the analysis
+ * gives the answers it gave when it decoded the whole result (about 2.7 kB of JSON per point). */
 export interface HistoryPointRow {
   pointId: number;
   phase: Phase;
@@ -20,7 +21,7 @@ export interface HistoryPointRow {
   errorHz: number;
   /** result.errorPpm (column error_ppm). */
   errorPpm: number;
-  /** result.budget.combinedHz (read out of result_json by SQLite). */
+  /** result.budget.combinedHz (COMBINED_HZ_SQL). */
   combinedHz: number;
   /** result.decision.toleranceHz (column tolerance_hz). */
   toleranceHz: number;
@@ -54,9 +55,14 @@ type JoinedRow = [
   errorHz: number | null,
   errorPpm: number | null,
   toleranceHz: number | null,
-  /** The JSON text of result.budget.combinedHz (SQLite's -> keeps a number's text as written). */
-  combinedJson: string | null,
+  /** result.budget.combinedHz as COMBINED_HZ_SQL gives it. */
+  combinedHz: CombinedHzCell,
 ];
+
+/** A point's combinedHz: its combined_hz cell, else (points written before migration 0009) the
+ * JSON text in its stored result. The very expression the history index holds (0009), so SQLite
+ * reads it out of the index and parses no stored result. */
+export const COMBINED_HZ_SQL = "coalesce(cp.combined_hz, cp.result_json -> '$.budget.combinedHz')";
 
 export const HISTORY_SQL = `WITH newest AS (
     SELECT cr.*, ROW_NUMBER() OVER (PARTITION BY cr.check_id ORDER BY (cr.state <> 'draft') DESC, cr.revision DESC) AS rn
@@ -64,7 +70,7 @@ export const HISTORY_SQL = `WITH newest AS (
   )
   SELECT n.check_id, n.revision, n.performed_on, n.adjusted, n.as_found_verdict, n.as_left_verdict,
          n.worst_used_fraction, cp.id, cp.phase, cp.reference_hz, cp.dip_depth_db,
-         cp.error_hz, cp.error_ppm, cp.tolerance_hz, cp.result_json -> '$.budget.combinedHz'
+         cp.error_hz, cp.error_ppm, cp.tolerance_hz, ${COMBINED_HZ_SQL}
   FROM newest n LEFT JOIN check_point cp ON cp.revision_id = n.id
   WHERE n.rn = 1
   ORDER BY n.performed_on, n.check_id, cp.seq`;
@@ -83,12 +89,6 @@ export function meterHistory(db: LabDb, meterId: number): HistoryCheckRow[] {
     HISTORY_STATEMENTS.set(db, read);
   }
   return rowsToHistory(read.all(meterId) as JoinedRow[]);
-}
-
-/** The JSON text of one number of a stored result, decoded as the whole result would be
- * (non-finite numbers travel as strings; a missing value stays undefined, as it was). */
-function numberOfJson(text: string | null): number {
-  return (text === null ? undefined : decodeJson(text)) as number;
 }
 
 function rowsToHistory(rows: JoinedRow[]): HistoryCheckRow[] {
@@ -116,7 +116,7 @@ function rowsToHistory(rows: JoinedRow[]): HistoryCheckRow[] {
         dipDepthDb: r[10],
         errorHz: r[11] as number,
         errorPpm: r[12] as number,
-        combinedHz: numberOfJson(r[14]),
+        combinedHz: combinedHzOfCell(r[14]),
         toleranceHz: r[13] as number,
       });
     }

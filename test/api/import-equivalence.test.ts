@@ -39,7 +39,7 @@ async function everyCheck(lab: { db: LabDb; api: LabApi }): Promise<unknown[]> {
 }
 
 const storedPoints = (db: LabDb) => db.prepare('SELECT * FROM check_point ORDER BY id').all();
-const storedReadings = (db: LabDb) => db.prepare('SELECT rowid, * FROM reading ORDER BY rowid').all();
+const storedReadings = (db: LabDb) => db.prepare('SELECT * FROM reading ORDER BY point_id, seq').all();
 const count = (db: LabDb, table: string) =>
   db.prepare(`SELECT count(*) FROM ${table}`).pluck().get() as number;
 

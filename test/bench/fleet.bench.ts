@@ -91,14 +91,21 @@ function bareInsertMs(source: Database.Database, dir: string): number {
     const insert = target.prepare(
       `INSERT INTO ${t} (${cols.join(', ')}) VALUES (${cols.map(() => '?').join(', ')})`,
     );
-    const read = source.prepare(`SELECT rowid, * FROM ${t} WHERE rowid > ? ORDER BY rowid LIMIT 5000`).raw();
-    let after = 0;
+    // Read in key order: the rowid, or the primary key of a table without one (reading, 0009).
+    const key = t === 'reading' ? ['point_id', 'seq'] : ['rowid'];
+    const read = source
+      .prepare(
+        `SELECT ${key.join(', ')}, * FROM ${t} WHERE (${key.join(', ')}) > (${key.map(() => '?').join(', ')})
+         ORDER BY ${key.join(', ')} LIMIT 5000`,
+      )
+      .raw();
+    let after: unknown[] = key.map(() => 0);
     for (;;) {
-      const rows = read.all(after) as unknown[][];
+      const rows = read.all(...after) as unknown[][];
       if (rows.length === 0) break;
-      after = rows[rows.length - 1]?.[0] as number;
+      after = (rows[rows.length - 1] as unknown[]).slice(0, key.length);
       ms += timed(() => {
-        for (const r of rows) insert.run(r.slice(1));
+        for (const r of rows) insert.run(r.slice(key.length));
       }).ms;
     }
   }

@@ -4,10 +4,12 @@ import { describe, expect, it } from 'vitest';
 import { createLabService } from '../../app/api/service';
 import { migrate, openLabDb, schemaVersion } from '../../db/store';
 import { clock, goodCheck, seed } from '../fixtures/lab';
+import { withLaterColumns } from '../fixtures/later-columns';
 
 describe('migration 0008_audit_index', () => {
   it('indexes the trail of a file at schema 7 without changing an entry', async () => {
     const db = openLabDb(':memory:', { targetVersion: 7 });
+    withLaterColumns(db);
     const api = createLabService(db, { clock });
     await seed(api);
     await api.recordCheck(goodCheck());

@@ -4,6 +4,7 @@ import { describe, expect, it } from 'vitest';
 import { createLabService } from '../../app/api/service';
 import { migrate, openLabDb, schemaVersion } from '../../db/store';
 import { clock, goodCheck, seed } from '../fixtures/lab';
+import { withLaterColumns } from '../fixtures/later-columns';
 
 const generations = (db: ReturnType<typeof openLabDb>) =>
   db
@@ -15,6 +16,7 @@ const generations = (db: ReturnType<typeof openLabDb>) =>
 describe('migration 0006_summaries', () => {
   it('numbers the meters of a file at schema 5, and its triggers follow each change', async () => {
     const db = openLabDb(':memory:', { targetVersion: 5 });
+    withLaterColumns(db);
     const api = createLabService(db, { clock });
     await seed(api);
     await api.recordCheck(goodCheck());

@@ -1,11 +1,12 @@
 // The history import's row reader (app/formats/csv-rows.ts) against csv-parse, the reader it
 // shortcuts: the same rows, the same line numbers and the same refusals, on generated text with
-// blanks, odd whitespace, empty lines, both line breaks and rows of other lengths, and on the
-// demo lab's export.
+// blanks, odd whitespace, empty lines, both line breaks, quoted fields and rows of other lengths.
+// Also the row a sink is handed (eachCsvRow): each field read on its own is the record's field,
+// and a file the shortcut gives up on part way reaches the sink once, whole, from csv-parse.
 import fc from 'fast-check';
 import { parse as parseCsv } from 'csv-parse/sync';
 import { describe, expect, it } from 'vitest';
-import { plainRows, readCsvRows } from '../../app/formats/csv-rows';
+import { eachCsvRow, plainRows, readCsvRows, type CsvRow } from '../../app/formats/csv-rows';
 
 function csvParse(text: string): { record: string[]; line: number }[] | { error: string } {
   try {
@@ -29,9 +30,14 @@ function ours(text: string): { record: string[]; line: number }[] | { error: str
 }
 
 const blank = fc.constantFrom(' ', '\t', '\u00a0', '\u2003', '\u3000', '\ufeff', '\u2028', '');
-const cell = fc
+const plainCell = fc
   .tuple(blank, fc.stringMatching(/^[A-Za-z0-9 .;:+\-éµ%]{0,8}$/), fc.constantFrom('', ' ', '\t', '\u00a0'))
   .map(([a, b, c]) => a + b + c);
+// Now and then a quoted field (a comma, a line break or a quote inside), which only csv-parse reads.
+const cell = fc.oneof(
+  { weight: 40, arbitrary: plainCell },
+  { weight: 1, arbitrary: fc.constantFrom('"a,b"', '"x"', '""', '"two\nlines"', '"q ""q"""') },
+);
 const row = (width: number) =>
   fc.oneof(
     { weight: 8, arbitrary: fc.array(cell, { minLength: width, maxLength: width }) },
@@ -74,6 +80,42 @@ describe('readCsvRows', () => {
     );
     // The comparison means something only if the shortcut took a good share of the cases.
     expect(shortcut).toBeGreaterThan(500);
+  });
+
+  it('hands a sink each row once, whose fields read one by one are the record, from one reader', () => {
+    let restarts = 0;
+    fc.assert(
+      fc.property(file, (f) => {
+        const text = textOf(f);
+        const expected = csvParse(text);
+        let starts = 0;
+        const seen: { record: string[]; line: number }[] = [];
+        const start = () => {
+          starts++;
+          seen.length = 0;
+          return {
+            row(r: CsvRow) {
+              const record = r.record();
+              expect(r.width).toBe(record.length);
+              for (let i = 0; i < r.width; i++) expect(r.field(i)).toBe(record[i]);
+              seen.push({ record, line: r.line });
+            },
+          };
+        };
+        try {
+          eachCsvRow(text, start);
+        } catch (e) {
+          expect({ error: e instanceof Error ? e.message : String(e) }).toEqual(expected);
+          return;
+        }
+        expect(seen).toEqual(expected);
+        // A fresh sink only when the shortcut gave up (on a quote, a stray CR, a length or blanks).
+        expect(starts).toBe(plainRows(text) ? 1 : 2);
+        if (starts === 2 && seen.length > 0) restarts++;
+      }),
+      { numRuns: 2000 },
+    );
+    expect(restarts).toBeGreaterThan(50);
   });
 
   it('hands quoted text, bare CR and lines of blanks to csv-parse', () => {
