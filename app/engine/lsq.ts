@@ -10,6 +10,8 @@
 // (its damping is added to the diagonal unscaled), complex residuals written as two real rows
 // without building an n x p matrix object, and rejection of steps that leave the physical
 // region (QL > 0, a depth below 1) instead of clamping them; and a statistical stop (stepTolerance).
+// For long traces, passes without J'WJ where a normal matrix from a thinned subset will do
+// (chordMinimum, startNormalMatrix).
 
 export interface LsqProblem {
   /** Number of residual rows. */
@@ -38,6 +40,13 @@ export interface LsqProblem {
     jtj: Float64Array,
     jtr: Float64Array,
   ): number | null;
+  /**
+   * Optional: fills r as `evaluate` does and J'Wr with the weights w (all 1 when absent), without
+   * J'WJ; returns the weighted SSR, or null outside the physical region. Such a pass costs about
+   * half of one that forms J'WJ too; `chordMinimum` and the `startNormalMatrix` option use it where
+   * a normal matrix known from elsewhere will do.
+   */
+  gradient?(p: Float64Array, w: Float64Array | undefined, r: Float64Array, jtr: Float64Array): number | null;
 }
 
 export interface LsqOptions {
@@ -55,6 +64,20 @@ export interface LsqOptions {
    * of the point one such step before, which differs from the solution's by far less than its noise.
    */
   stepTolerance?: number;
+  /**
+   * An approximation of J'WJ at `start` (say from an evenly thinned subset of the rows, scaled to
+   * all of them), for a problem with a `gradient` method: the start then costs a pass without J'WJ,
+   * and the first step solves with this matrix. Every later point gets its exact J'WJ, and the
+   * statistical stop and the covariance wait for one, so the answer is that of an exact start to
+   * within what the stop allows; a poorer approximation only makes the first step land less close.
+   */
+  startNormalMatrix?: Float64Array;
+  /**
+   * Two arrays of `rows` numbers to hold the residuals (current and trial) instead of new ones: their
+   * contents are overwritten before being read, and the result's residuals is one of them. For a
+   * caller fitting many long traces, which saves allocating and collecting them on every fit.
+   */
+  buffers?: [Float64Array, Float64Array];
 }
 
 export interface LsqResult {
@@ -119,7 +142,7 @@ export function spdInverse(a: Float64Array, n: number): Float64Array | null {
   return inv;
 }
 
-/** J'WJ (lower triangle mirrored) and J'Wr, row by row, for any number of parameters. */
+/** J'WJ (lower triangle only) and J'Wr, row by row, for any number of parameters. */
 function normalEquationsAny(
   p: number,
   n: number,
@@ -143,6 +166,13 @@ function normalEquationsAny(
         jtj[a * p + b] = (jtj[a * p + b] as number) + ja * (jac[base + b] as number);
     }
   }
+}
+
+/** Copies the lower triangle of the p x p jtj to the upper. Apart from normalEquationsAny's loop over
+ * the rows because V8 compiles a long loop while its first run is still in it, and code after the
+ * loop that had not run by then sent later calls back out of the compiled code (up to 142 times in
+ * one run of the fit benchmark, measured). */
+function mirrorLower(jtj: Float64Array, p: number): void {
   for (let a = 0; a < p; a++) for (let b = a + 1; b < p; b++) jtj[a * p + b] = jtj[b * p + a] as number;
 }
 
@@ -278,16 +308,38 @@ function normalEquations(
 ): void {
   const { params: p, rows: n, weights: w } = problem;
   if (p === 6) normalEquations6(n, w, r, jac, jtj, jtr);
-  else normalEquationsAny(p, n, w, r, jac, jtj, jtr);
+  else {
+    normalEquationsAny(p, n, w, r, jac, jtj, jtr);
+    mirrorLower(jtj, p);
+  }
+}
+
+/** The caller's two residual arrays (checked to hold n numbers each), or two new ones. */
+function residualBuffers(
+  buffers: [Float64Array, Float64Array] | undefined,
+  n: number,
+): [Float64Array, Float64Array] {
+  if (!buffers) return [new Float64Array(n), new Float64Array(n)];
+  if (buffers[0].length !== n || buffers[1].length !== n || buffers[0] === buffers[1])
+    throw new LsqError(`the residual buffers must be two arrays of ${n} numbers`);
+  return [buffers[0], buffers[1]];
 }
 
 function weightedSsr(problem: LsqProblem, r: Float64Array): number {
   const w = problem.weights;
+  const n = problem.rows;
   let s = 0;
-  for (let i = 0; i < problem.rows; i++) {
-    const ri = r[i] as number;
-    s += (w ? (w[i] as number) : 1) * ri * ri;
-  }
+  // Two loops rather than a test per row; unweighted, 1 * ri * ri is ri * ri to the last bit.
+  if (w)
+    for (let i = 0; i < n; i++) {
+      const ri = r[i] as number;
+      s += (w[i] as number) * ri * ri;
+    }
+  else
+    for (let i = 0; i < n; i++) {
+      const ri = r[i] as number;
+      s += ri * ri;
+    }
   return s;
 }
 
@@ -309,8 +361,7 @@ export function levenbergMarquardt(
   // Jacobians): a trial is evaluated with its derivatives into the spare set, and an accepted trial
   // swaps them in rather than being evaluated a second time.
   const fused = problem.normalEquations?.bind(problem);
-  let r = new Float64Array(n);
-  let rTry = new Float64Array(n);
+  let [r, rTry] = residualBuffers(options.buffers, n);
   let jac = fused ? null : new Float64Array(n * p);
   let jacTry = fused ? null : new Float64Array(n * p);
   let jtj = new Float64Array(p * p);
@@ -333,16 +384,20 @@ export function levenbergMarquardt(
     [jtr, jtrTry] = [jtrTry, jtr];
     if (jac) normalEquations(problem, r, jac, jtj, jtr);
   };
-  const ssrStart = evaluateTry(params);
+  const startGradient = options.startNormalMatrix && problem.gradient?.bind(problem);
+  /** Whether jtj is J'WJ at `params`, not the approximation given for the start. */
+  let exact = !startGradient;
+  const ssrStart = startGradient ? startGradient(params, problem.weights, r, jtr) : evaluateTry(params);
   if (ssrStart === null) throw new LsqError('the start values lie outside the model');
   let ssr = ssrStart;
-  acceptTry();
+  if (startGradient) jtj.set(options.startNormalMatrix as Float64Array);
+  else acceptTry();
   let lambda = 1e-3;
   let iterations = 0;
   let converged = false;
   while (iterations < maxIterations) {
     iterations++;
-    if (stepTolerance !== undefined) {
+    if (stepTolerance !== undefined && exact) {
       const step = choleskySolve(jtj, jtr, p);
       if (step) {
         // d'J'Wr = d'J'WJd: the SSR the Gauss-Newton step would remove.
@@ -384,6 +439,7 @@ export function levenbergMarquardt(
         params = Float64Array.from(trial);
         ssr = ssrTry;
         acceptTry();
+        exact = true;
         lambda = Math.max(lambda / 10, 1e-12);
         accepted = true;
         if (decrease < tolerance) converged = true;
@@ -395,9 +451,83 @@ export function levenbergMarquardt(
     }
     if (converged) break;
   }
+  if (!exact) {
+    // No step left the start: its exact J'WJ, for the covariance.
+    if (evaluateTry(params) === null) throw new LsqError('the start values lie outside the model');
+    acceptTry();
+  }
   const inverse = spdInverse(jtj, p);
   if (!inverse) throw new LsqError('the fit is degenerate: its parameters cannot be told apart by the data');
   const residualVariance = ssr / (n - p);
   const covariance = inverse.map((v) => v * residualVariance);
   return { params, ssr, covariance, residualVariance, residuals: r, iterations, converged };
+}
+
+export interface ChordResult {
+  params: Float64Array;
+  /** Residuals (data - model) at `params`. */
+  residuals: Float64Array;
+  /** Weighted SSR at `params`. */
+  ssr: number;
+  iterations: number;
+}
+
+/**
+ * The least-squares minimum near `start` by Gauss-Newton steps that all solve with one fixed
+ * approximation `normalMatrix` of J'WJ (the chord, or simplified Newton, method: J. E. Dennis and
+ * R. B. Schnabel, Numerical Methods for Unconstrained Optimization and Nonlinear Equations, SIAM
+ * 1996, ch. 5; from memory), so each step costs a `gradient` pass and no J'WJ. It stops on
+ * `stepTolerance` as levenbergMarquardt does, the step measured with the fixed matrix, and still
+ * takes that last step when it lowers the SSR. With a start near the minimum and a matrix close to
+ * J'WJ there it converges about as fast as Gauss-Newton. No covariance: for a fit that only has to
+ * supply the residuals at its minimum. Returns null, for the caller to fall back on
+ * levenbergMarquardt, when a step leaves the model or raises the SSR, the matrix is not positive
+ * definite, or maxIterations steps do not meet the tolerance.
+ */
+export function chordMinimum(
+  problem: LsqProblem,
+  start: ArrayLike<number>,
+  normalMatrix: Float64Array,
+  options: Pick<LsqOptions, 'maxIterations' | 'buffers'> & { stepTolerance: number },
+): ChordResult | null {
+  const gradient = problem.gradient?.bind(problem);
+  if (!gradient) throw new LsqError('chordMinimum needs a problem with a gradient method');
+  const n = problem.rows;
+  const p = problem.params;
+  if (n <= p) throw new LsqError(`${n} data for ${p} parameters: a fit needs more data than parameters`);
+  const w = problem.weights;
+  const tolerance2 = options.stepTolerance * options.stepTolerance;
+  const maxIterations = options.maxIterations ?? 10;
+  let params = Float64Array.from(start);
+  let [r, rTry] = residualBuffers(options.buffers, n);
+  const jtr = new Float64Array(p);
+  const trial = new Float64Array(p);
+  let ssr = gradient(params, w, r, jtr);
+  if (ssr === null) return null;
+  for (let iterations = 1; iterations <= maxIterations; iterations++) {
+    const step = choleskySolve(normalMatrix, jtr, p);
+    if (!step) return null;
+    // As in levenbergMarquardt's statistical stop, with the fixed matrix.
+    let removable = 0;
+    for (let a = 0; a < p; a++) removable += (step[a] as number) * (jtr[a] as number);
+    const s2 = Math.max(ssr - removable, 0) / (n - p);
+    for (let a = 0; a < p; a++) trial[a] = (params[a] as number) + (step[a] as number);
+    if (removable <= tolerance2 * s2) {
+      if (problem.evaluate(trial, rTry, null)) {
+        const ssrTry = weightedSsr(problem, rTry);
+        if (ssrTry <= ssr) {
+          params = Float64Array.from(trial);
+          ssr = ssrTry;
+          [r, rTry] = [rTry, r];
+        }
+      }
+      return { params, residuals: r, ssr, iterations };
+    }
+    const ssrTry = gradient(trial, w, rTry, jtr);
+    if (ssrTry === null || !(ssrTry <= ssr)) return null;
+    params = Float64Array.from(trial);
+    ssr = ssrTry;
+    [r, rTry] = [rTry, r];
+  }
+  return null;
 }

@@ -22,7 +22,7 @@
 // Standard uncertainties come from the covariance of the fit (lsq.ts); they describe the noise of
 // this trace only, not the source's own uncertainty or the meter's setting.
 
-import { levenbergMarquardt, LsqError, type LsqProblem } from './lsq';
+import { chordMinimum, levenbergMarquardt, LsqError, type LsqProblem, type LsqResult } from './lsq';
 
 export interface ScalarTrace {
   kind: 'scalar';
@@ -302,6 +302,10 @@ const STEP_TOLERANCE = 0.001;
  * 20,001-point traces with up to five times the usual noise, and by under 1e-5 on the benchmark's (tmp
  * measurement); it saves about one pass over the trace in six. Short traces keep STEP_TOLERANCE:
  * there the first fit starts far off, and 0.1 moved their answers by up to 7.7e-4 of u.
+ * That fit now steps with the thinned subset's J'WJ (chordMinimum), each step a pass without J'WJ,
+ * and the weighted fit's first step too (startNormalMatrix): against both passes run to rounding,
+ * f0 and QL then moved by at most 2.8e-5 of u and u(f0), u(QL) by 6.7e-6 of themselves on those
+ * long traces, as before within the spread the stop already allowed (tmp measurement).
  */
 const NOISE_PASS_STEP_TOLERANCE = 0.1;
 /** Traces with more points than this get a first fit on an evenly thinned subset (a start only). */
@@ -311,12 +315,15 @@ const THIN_POINTS = 1000;
 
 /** Scaled scalar model, parameters [x0, g, A, c0, c1]: y = (c0 + c1 (x - x0)) (1 - A / (1 + u^2)),
  * u = g (x - x0); so f0 = fc + s x0 and QL = g f0 / (2 s) for x = (f - fc) / s. */
-// Exported for the test that keeps its two copies of the derivatives (evaluate, normalEquations) equal.
+// Exported for the tests that keep its copies of the derivatives (evaluate, normalEquations, gradient)
+// equal.
 export function scalarProblem(x: Float64Array, y: Float64Array): LsqProblem {
   const n = x.length;
   return {
     rows: n,
     params: 5,
+    // Set by the weighted fit; present from the start so the object keeps one shape (for V8).
+    weights: undefined,
     evaluate(p, r, jac) {
       const x0 = p[0] as number;
       const g = p[1] as number;
@@ -453,17 +460,75 @@ export function scalarProblem(x: Float64Array, y: Float64Array): LsqProblem {
       jtr[4] = t4;
       return ssr;
     },
+    // normalEquations without J'WJ: the same expressions, so the same residuals, J'Wr and SSR.
+    gradient(p, w, r, jtr) {
+      const x0 = p[0] as number;
+      const g = p[1] as number;
+      const a = p[2] as number;
+      const c0 = p[3] as number;
+      const c1 = p[4] as number;
+      if (!(g > 0) || !(a > 0) || !(a < 1) || !(c0 > 0)) return null;
+      let t0 = 0,
+        t1 = 0,
+        t2 = 0,
+        t3 = 0,
+        t4 = 0,
+        ssr = 0;
+      for (let i = 0; i < n; i++) {
+        const dx = (x[i] as number) - x0;
+        const u = g * dx;
+        const l = 1 / (1 + u * u);
+        const d = 1 - a * l;
+        const b = c0 + c1 * dx;
+        const ri = (y[i] as number) - b * d;
+        r[i] = ri;
+        const bal2u = 2 * b * a * l * l * u;
+        const j0 = -c1 * d - bal2u * g;
+        const j1 = bal2u * dx;
+        const j2 = -b * l;
+        const j3 = d;
+        const j4 = dx * d;
+        let v0 = j0;
+        let v1 = j1;
+        let v2 = j2;
+        let v3 = j3;
+        let v4 = j4;
+        let wr = ri;
+        if (w) {
+          const wi = w[i] as number;
+          v0 = wi * j0;
+          v1 = wi * j1;
+          v2 = wi * j2;
+          v3 = wi * j3;
+          v4 = wi * j4;
+          wr = wi * ri;
+        }
+        ssr += wr * ri;
+        t0 += v0 * ri;
+        t1 += v1 * ri;
+        t2 += v2 * ri;
+        t3 += v3 * ri;
+        t4 += v4 * ri;
+      }
+      jtr[0] = t0;
+      jtr[1] = t1;
+      jtr[2] = t2;
+      jtr[3] = t3;
+      jtr[4] = t4;
+      return ssr;
+    },
   };
 }
 
-/**
- * Start for the fit of a long trace: the same unweighted fit on every k-th point, which costs a
- * k-th of an iteration on the whole trace and brings the start within a few standard
- * uncertainties of the minimum, so the fit on every point then takes one or two steps. The answer
- * is still the whole trace's minimum: only the start changes. Falls back to `start` when the
- * subset cannot be fitted.
- */
-function roughStart(x: Float64Array, y: Float64Array, start: number[]): Float64Array | null {
+/** Every k-th point of a long trace, for the cheap first fit and an approximate J'WJ. */
+interface Thinned {
+  stride: number;
+  problem: LsqProblem;
+  /** Points of the whole trace per point of the subset: from the subset's J'WJ to the trace's. */
+  scale: number;
+}
+
+function thinned(x: Float64Array, y: Float64Array): Thinned | null {
   const n = x.length;
   if (n <= THIN_ABOVE_POINTS) return null;
   const stride = Math.floor(n / THIN_POINTS);
@@ -474,59 +539,127 @@ function roughStart(x: Float64Array, y: Float64Array, start: number[]): Float64A
     xs[i] = x[k] as number;
     ys[i] = y[k] as number;
   }
+  return { stride, problem: scalarProblem(xs, ys), scale: n / m };
+}
+
+/**
+ * The whole trace's J'WJ at p, approximated by the subset's (with the whole trace's weights w at the
+ * same points) times the points per subset point. Its rows are even samples of functions that vary
+ * over a linewidth, hundreds of points: the sum over every k-th row times k is the sum over all rows
+ * to a fraction of a percent, all a first step needs. Null outside the model.
+ */
+function thinnedNormalMatrix(
+  thin: Thinned,
+  p: Float64Array,
+  w: Float64Array | undefined,
+): Float64Array | null {
+  const m = thin.problem.rows;
+  let ws: Float64Array | undefined;
+  if (w) {
+    ws = new Float64Array(m);
+    for (let i = 0, k = 0; i < m; i++, k += thin.stride) ws[i] = w[k] as number;
+  }
+  const jtj = new Float64Array(25);
+  if (thin.problem.normalEquations?.(p, ws, new Float64Array(m), jtj, new Float64Array(5)) == null)
+    return null;
+  for (let k = 0; k < 25; k++) jtj[k] = (jtj[k] as number) * thin.scale;
+  return jtj;
+}
+
+/**
+ * Start for the fit of a long trace: the same unweighted fit on every k-th point, which costs a
+ * k-th of an iteration on the whole trace and brings the start within a few standard
+ * uncertainties of the minimum, with the subset's J'WJ there (scaled) for the steps on every point.
+ * The answer is still the whole trace's minimum: only the start changes. Null when the subset
+ * cannot be fitted.
+ */
+function roughStart(
+  thin: Thinned,
+  start: number[],
+): { params: Float64Array; normalMatrix: Float64Array } | null {
   try {
-    return levenbergMarquardt(scalarProblem(xs, ys), start, { stepTolerance: 1 }).params;
+    const params = levenbergMarquardt(thin.problem, start, { stepTolerance: 1 }).params;
+    const normalMatrix = thinnedNormalMatrix(thin, params, undefined);
+    return normalMatrix ? { params, normalMatrix } : null;
   } catch (e) {
     if (e instanceof LsqError) return null;
     throw e;
   }
 }
 
-/** Scalar Lorentzian fit on the given points (weighted by an additive + multiplicative noise model). */
-export function fitScalarDip(
+// fitScalarDip's passes over the points, each a function of its own: V8 optimizes a small function
+// after a few calls, while a large one with inlined callees takes a long compile (over 100 ms on a
+// loaded machine, measured), during which its loops would run unoptimized.
+
+/**
+ * Working arrays of fitScalarDip (x, y, weights and two of residuals), kept from one call to the
+ * next: allocating them afresh, 400 kB for a 10,001-point trace, made each fit about 40 % slower in
+ * the benchmark's process, where the garbage collector also has other work (CPU a fit, medians of
+ * three runs each: 1.2-1.5 ms kept, 1.9-2.0 ms allocated; tmp measurement). One set suffices:
+ * fitScalarDip runs to its end without calling anything that could call it again, it writes every
+ * element before reading it, and none of these arrays outlives the call (the returned DipFit holds
+ * numbers only). Not kept above SCRATCH_MAX_POINTS, so at most 4 MB stay allocated.
+ */
+let scratch: Float64Array[] = [];
+const SCRATCH_MAX_POINTS = 100_000;
+
+/** Five arrays of n numbers, each with its own storage; their contents are left from earlier calls. */
+function scratchArrays(n: number): Float64Array[] {
+  if (n > SCRATCH_MAX_POINTS) return Array.from({ length: 5 }, () => new Float64Array(n));
+  if ((scratch[0]?.length ?? 0) < n) scratch = Array.from({ length: 5 }, () => new Float64Array(n));
+  return scratch.map((a) => a.subarray(0, n));
+}
+
+/** The trace in the fit's scaled variables, into x and y: x = (f - fc) / s, y = P / ps. */
+function scaleTrace(
   frequencyHz: ArrayLike<number>,
   power: ArrayLike<number>,
-  start: ScalarStart,
-): DipFit {
+  fc: number,
+  s: number,
+  ps: number,
+  x: Float64Array,
+  y: Float64Array,
+): void {
   const n = frequencyHz.length;
-  const fc = start.f0Hz;
-  const s = start.widthHz;
-  const ps = start.baseline;
-  const x = new Float64Array(n);
-  const y = new Float64Array(n);
   for (let i = 0; i < n; i++) {
     x[i] = ((frequencyHz[i] as number) - fc) / s;
     y[i] = (power[i] as number) / ps;
   }
-  const problem = scalarProblem(x, y);
-  const startParams = [
-    0,
-    2 * (s / start.widthHz),
-    Math.min(Math.max(start.depth, 0.02), 0.98),
-    1,
-    (start.slopePerHz * s) / ps,
-  ];
-  const rough = roughStart(x, y, startParams);
-  let result = levenbergMarquardt(problem, rough ?? startParams, {
-    stepTolerance: rough ? NOISE_PASS_STEP_TOLERANCE : STEP_TOLERANCE,
-  });
-  // Noise model s_a^2 + s_m^2 m^2 from the squared residuals of the first fit, then refit.
-  let r = result.residuals;
-  let s11 = 0;
-  let s12 = 0;
-  let s22 = 0;
-  let t1 = 0;
-  let t2 = 0;
+}
+
+/**
+ * Sums over the points for the noise model, into acc: sum m^2, sum m^4, sum r^2, sum r^2 m^2 for the
+ * model m = y - r. Accumulated in acc inside the loop, not in local variables read after it: V8
+ * compiles a long loop while its first run is still in it (on-stack replacement), and code after the
+ * loop that had never run by then made every later call fall back out of the compiled loop (500 to
+ * 700 deoptimizations in a profiling run of 10,001-point fits, over a third of their time; measured).
+ */
+function noiseMoments(y: Float64Array, r: Float64Array, acc: Float64Array): Float64Array {
+  const n = y.length;
+  acc.fill(0);
   for (let i = 0; i < n; i++) {
     const m = (y[i] as number) - (r[i] as number);
     const m2 = m * m;
     const e2 = (r[i] as number) * (r[i] as number);
-    s11 += 1;
-    s12 += m2;
-    s22 += m2 * m2;
-    t1 += e2;
-    t2 += e2 * m2;
+    acc[0] = (acc[0] as number) + m2;
+    acc[1] = (acc[1] as number) + m2 * m2;
+    acc[2] = (acc[2] as number) + e2;
+    acc[3] = (acc[3] as number) + e2 * m2;
   }
+  return acc;
+}
+
+/** Additive and multiplicative noise variances s_a^2, s_m^2 from residuals r of the model y - r: least
+ * squares of r^2 on (1, m^2), one term alone when the other would come out negative. */
+function noiseVariances(y: Float64Array, r: Float64Array): { va: number; vm: number } {
+  const n = y.length;
+  const [s12, s22, t1, t2] = noiseMoments(y, r, new Float64Array(4)) as unknown as [
+    number,
+    number,
+    number,
+    number,
+  ];
+  const s11 = n;
   const det = s11 * s22 - s12 * s12;
   let va = det > 0 ? (t1 * s22 - t2 * s12) / det : t1 / n;
   let vm = det > 0 ? (s11 * t2 - s12 * t1) / det : 0;
@@ -540,15 +673,89 @@ export function fitScalarDip(
       va = 0;
     }
   }
-  if (va + vm > 0) {
-    const weights = new Float64Array(n);
-    for (let i = 0; i < n; i++) {
-      const m = (y[i] as number) - (r[i] as number);
-      weights[i] = 1 / Math.max(va + vm * m * m, 1e-300);
-    }
-    problem.weights = weights;
-    result = levenbergMarquardt(problem, result.params, { stepTolerance: STEP_TOLERANCE });
+  return { va, vm };
+}
+
+/** Weights 1 / (s_a^2 + s_m^2 m^2) at the model m = y - r, into `weights`. */
+function noiseWeights(
+  y: Float64Array,
+  r: Float64Array,
+  va: number,
+  vm: number,
+  weights: Float64Array,
+): Float64Array {
+  const n = y.length;
+  for (let i = 0; i < n; i++) {
+    const m = (y[i] as number) - (r[i] as number);
+    weights[i] = 1 / Math.max(va + vm * m * m, 1e-300);
   }
+  return weights;
+}
+
+function sumOfSquares(r: Float64Array): number {
+  let sq = 0;
+  for (let i = 0; i < r.length; i++) sq += (r[i] as number) * (r[i] as number);
+  return sq;
+}
+
+/** Scalar Lorentzian fit on the given points (weighted by an additive + multiplicative noise model). */
+export function fitScalarDip(
+  frequencyHz: ArrayLike<number>,
+  power: ArrayLike<number>,
+  start: ScalarStart,
+): DipFit {
+  const n = frequencyHz.length;
+  const fc = start.f0Hz;
+  const s = start.widthHz;
+  const ps = start.baseline;
+  const [x, y, weights, r1, r2] = scratchArrays(n) as [
+    Float64Array,
+    Float64Array,
+    Float64Array,
+    Float64Array,
+    Float64Array,
+  ];
+  const buffers: [Float64Array, Float64Array] = [r1, r2];
+  scaleTrace(frequencyHz, power, fc, s, ps, x, y);
+  const problem = scalarProblem(x, y);
+  const startParams = [
+    0,
+    2 * (s / start.widthHz),
+    Math.min(Math.max(start.depth, 0.02), 0.98),
+    1,
+    (start.slopePerHz * s) / ps,
+  ];
+  const thin = thinned(x, y);
+  const rough = thin ? roughStart(thin, startParams) : null;
+  // The first, unweighted fit only supplies the residuals for the noise model: on a long trace by
+  // steps with the subset's J'WJ, each a pass without J'WJ; Levenberg-Marquardt if they fail.
+  const chord = rough
+    ? chordMinimum(problem, rough.params, rough.normalMatrix, {
+        stepTolerance: NOISE_PASS_STEP_TOLERANCE,
+        buffers,
+      })
+    : null;
+  let full: LsqResult | null = null;
+  let first: { params: Float64Array; residuals: Float64Array };
+  if (chord) first = chord;
+  else
+    first = full = levenbergMarquardt(problem, rough?.params ?? startParams, {
+      stepTolerance: rough ? NOISE_PASS_STEP_TOLERANCE : STEP_TOLERANCE,
+      buffers,
+    });
+  // Noise model s_a^2 + s_m^2 m^2 from the squared residuals of the first fit, then refit.
+  const { va, vm } = noiseVariances(y, first.residuals);
+  if (va + vm > 0) problem.weights = noiseWeights(y, first.residuals, va, vm, weights);
+  // The weighted fit, its first step with the subset's J'WJ. Without weights (residuals all zero),
+  // the first fit is the answer when it was a full one.
+  const result =
+    !problem.weights && full
+      ? full
+      : levenbergMarquardt(problem, first.params, {
+          stepTolerance: STEP_TOLERANCE,
+          buffers,
+          startNormalMatrix: (thin && thinnedNormalMatrix(thin, first.params, problem.weights)) ?? undefined,
+        });
   const [x0, g, a, c0, c1] = Array.from(result.params) as [number, number, number, number, number];
   const cov = result.covariance;
   const f0Hz = fc + s * x0;
@@ -562,9 +769,7 @@ export function fitScalarDip(
     2 * dQdx0 * dQdg * (cov[1] as number) +
     dQdg * dQdg * (cov[6] as number);
   const uA = Math.sqrt(cov[12] as number);
-  r = result.residuals;
-  let sq = 0;
-  for (let i = 0; i < n; i++) sq += (r[i] as number) * (r[i] as number);
+  const sq = sumOfSquares(result.residuals);
   const widthHz = f0Hz / loadedQ;
   const notch = notchQs(loadedQ, 1 - Math.sqrt(1 - a), uA / a);
   return {
