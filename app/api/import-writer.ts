@@ -14,6 +14,8 @@ import type { FromWriter, ToWriter } from './import-writer-thread';
 
 /** Checks sent to the thread per message: fewer messages, and still a steady flow. */
 const CHECKS_PER_MESSAGE = 25;
+/** Starting takes about a second (tsx loads the thread's TypeScript); far longer means it never will. */
+const WRITER_START_TIMEOUT_MS = 30_000;
 
 export interface ImportWriter {
   /** Starts the import's transaction. */
@@ -143,12 +145,17 @@ export function importWriterFor(db: LabDb): Promise<ImportWriter | undefined> {
       return;
     }
     const failed = () => {
+      clearTimeout(timer);
       void worker.terminate();
       resolve(undefined);
     };
+    // A thread that neither starts nor fails (a host that cannot load its code) must not hold
+    // the import up for ever: it is written in the service's own transaction instead.
+    const timer = setTimeout(failed, WRITER_START_TIMEOUT_MS);
     worker.once('error', failed);
     worker.once('exit', failed);
     worker.once('message', (m: FromWriter) => {
+      clearTimeout(timer);
       worker.off('error', failed);
       worker.off('exit', failed);
       if (m.kind !== 'ready') return failed();
