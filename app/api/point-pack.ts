@@ -22,11 +22,13 @@
 // shape, a key "__proto__", an undefined, a class instance) was left to the caller to store as
 // plain JSON. Rows written before this form read as before.
 //
-// The tables below belong to format 1 and never change; a new entry means a new format number,
-// which an older reader leaves undecoded rather than misreads.
+// The tables below (the words and templates shared with format 2 in point-pack-tables.ts) belong
+// to format 1 and never change; a new entry means a new format number, which an older reader
+// leaves undecoded rather than misreads.
 
 /** What new writes store (format 2): the writer, and how its texts begin. */
 export { packPointResult2 as packPointResult, PACK_MARK_2 as PACK_MARK } from './point-pack2';
+import { keysAre, RESULT_TEMPLATES, RESULT_WORDS } from './point-pack-tables';
 
 /** How a format-1 text begins; no result stored as plain JSON begins so (its first key is meanDial). */
 export const PACK_MARK_1 = '{"~":1,';
@@ -83,60 +85,10 @@ const SHAPES: readonly (readonly string[])[] = [
 
 /** Whole values. The non-finite numbers are here as the strings encodeJson writes them, and
  * read back as numbers, as decodeJson reads those strings. */
-const WORDS: readonly (string | number)[] = [
-  Infinity,
-  -Infinity,
-  NaN,
-  'reference',
-  'repeatability',
-  'resolution',
-  'hysteresis',
-  'setting',
-  'temperature',
-  'expansion',
-  'pressure',
-  'humidity',
-  'fit',
-  'A',
-  'B',
-  'normal',
-  'rectangular',
-  't',
-  'Hz',
-  'div',
-  'degC',
-  '1/K',
-  'hPa',
-  '%RH',
-  'pass',
-  'conditional-pass',
-  'conditional-fail',
-  'fail',
-  'simple',
-  'guarded',
-  'guarded-fixed',
-  'non-binary',
-  'Reference source (certificate)',
-  'Repeatability (range of readings, rectangular)',
-  'Hysteresis between directions (half the difference of the means)',
-  'Bench temperature (cavity expansion and air index)',
-  'Expansion coefficient of the cavity',
-  'Air pressure (air index)',
-  'Relative humidity (air index)',
-  'one direction only: hysteresis not evaluated',
-  'one reading per direction: repeatability taken as rectangular with the range of the readings as half-width (no Type A evaluation possible)',
-  "reference frequency lies outside the meter's stated band",
-  'sweep method: dial set to a graduation, resonance fitted to the swept trace',
-];
+const WORDS: readonly (string | number)[] = [Infinity, -Infinity, NaN, ...RESULT_WORDS];
 
 /** [before, after] the part that differs from point to point. */
-const TEMPLATES: readonly (readonly [string, string])[] = [
-  ['Repeatability (pooled s = ', ' readings)'],
-  ['Dial resolution (', ', half-width = resolution / 2)'],
-  ['Setting on the dip (', ')'],
-  ["Resonance fit of the sweep (u(f0) from the fit's covariance, ", ' dof)'],
-  ['test uncertainty ratio ', ' is below 4'],
-];
+const TEMPLATES = RESULT_TEMPLATES;
 
 const wordCode = new Map<string, string>(WORDS.map((w, i) => [String(w), `~${i.toString(36)}`]));
 
@@ -201,16 +153,6 @@ const plainObject = (v: unknown): v is Record<string, unknown> => {
   const proto = Object.getPrototypeOf(v) as unknown;
   return proto === Object.prototype || proto === null;
 };
-/** Whether the own keys of `o`, in order, are `keys` (without making the list of them: this
- * runs for every budget line of every point written). */
-function keysAre(o: object, keys: readonly string[]): boolean {
-  let i = 0;
-  for (const k in o) {
-    if (!Object.prototype.hasOwnProperty.call(o, k) || k !== keys[i]) return false;
-    i++;
-  }
-  return i === keys.length;
-}
 
 /** A value outside the budget lines as encodeJson writes it (non-finite numbers as text), for
  * the plain data a result is; anything else is Unpackable. */

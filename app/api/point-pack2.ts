@@ -31,11 +31,12 @@
 // the caller to store as plain JSON. A damaged text is refused, never misread.
 //
 // Frozen: PACK_MARK_2, the layout above, OPS, CONSTANT_OPS and every table below with its
-// characters belong to format 2 and never change once shipped (test/api/point-pack2.test.ts holds
+// characters (words and templates shared with format 1 in point-pack-tables.ts) belong to format 2 and never change once shipped (test/api/point-pack2.test.ts holds
 // a text written when it shipped). A change is format 3, a new mark; the reader keeps reading
 // formats 1 and 2 and plain JSON. Buffer is Node's: this runs in the main process, never in the
 // renderer.
 import { Buffer } from 'node:buffer';
+import { keysAre, RESULT_TEMPLATES, RESULT_WORDS } from './point-pack-tables';
 
 /** How a format-2 text begins. */
 export const PACK_MARK_2 = '{"~":2,';
@@ -90,58 +91,11 @@ const KEY_LISTS: readonly (readonly string[])[] = [
 const KEY_LIST_OPS = ':;<>@/|~';
 
 /** Whole strings, one character each (WORD_OPS, same position). */
-const WORDS: readonly string[] = [
-  'reference',
-  'repeatability',
-  'resolution',
-  'hysteresis',
-  'setting',
-  'temperature',
-  'expansion',
-  'pressure',
-  'humidity',
-  'fit',
-  'A',
-  'B',
-  'normal',
-  'rectangular',
-  't',
-  'Hz',
-  'div',
-  'degC',
-  '1/K',
-  'hPa',
-  '%RH',
-  'pass',
-  'conditional-pass',
-  'conditional-fail',
-  'fail',
-  'simple',
-  'guarded',
-  'guarded-fixed',
-  'non-binary',
-  'Reference source (certificate)',
-  'Repeatability (range of readings, rectangular)',
-  'Hysteresis between directions (half the difference of the means)',
-  'Bench temperature (cavity expansion and air index)',
-  'Expansion coefficient of the cavity',
-  'Air pressure (air index)',
-  'Relative humidity (air index)',
-  'one direction only: hysteresis not evaluated',
-  'one reading per direction: repeatability taken as rectangular with the range of the readings as half-width (no Type A evaluation possible)',
-  "reference frequency lies outside the meter's stated band",
-  'sweep method: dial set to a graduation, resonance fitted to the swept trace',
-];
+const WORDS = RESULT_WORDS;
 const WORD_OPS = 'ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmn';
 
 /** [before, after] the part that differs from point to point (TEMPLATE_OPS, same position). */
-const TEMPLATES: readonly (readonly [string, string])[] = [
-  ['Repeatability (pooled s = ', ' readings)'],
-  ['Dial resolution (', ', half-width = resolution / 2)'],
-  ['Setting on the dip (', ')'],
-  ["Resonance fit of the sweep (u(f0) from the fit's covariance, ", ' dof)'],
-  ['test uncertainty ratio ', ' is below 4'],
-];
+const TEMPLATES = RESULT_TEMPLATES;
 const TEMPLATE_OPS = 'vwxyz';
 
 /** The other characters of S; none needs escaping in a JSON string. */
@@ -375,16 +329,6 @@ function packObject(o: object): void {
     packValue(rec[k]);
   }
   emit(OBJECT_END);
-}
-
-/** Whether the own keys of `o`, in order, are `keys` (without making the list of them). */
-function keysAre(o: object, keys: readonly string[]): boolean {
-  let i = 0;
-  for (const k in o) {
-    if (!Object.prototype.hasOwnProperty.call(o, k) || k !== keys[i]) return false;
-    i++;
-  }
-  return i === keys.length;
 }
 
 type KnownObject = Record<string, unknown>;
