@@ -7,7 +7,8 @@ import { formatFrequency } from '../engine';
 import type { CheckPointRecord } from '../api/contract';
 import { drawErrorChart, tolerancePpm } from './chart';
 import type { CheckDocumentData } from './model';
-import { CONTENT_WIDTH, MUTED, PAGE, Page } from './pdf';
+import { dccAttachment } from './dcc';
+import { CONTENT_WIDTH, MUTED, PAGE, Page, type Attachment } from './pdf';
 import { addSignaturePlaceholder, signWithP12, type PadesOptions } from './pades';
 import { buildRecord, encodeRecord, recordFileName, RECORD_MEDIA_TYPE, sha256Hex } from './record';
 import {
@@ -88,6 +89,7 @@ export function closeIssued(
   opened: { record: Buffer; recordName: string; recordSha256: string },
   data: CheckDocumentData,
   pades?: PadesOptions,
+  more: Attachment[] = [],
 ): RenderedDocument {
   const pdf = page.finish(
     [
@@ -99,6 +101,7 @@ export function closeIssued(
         // PDF/A-3: the data the document's content was rendered from.
         relationship: 'Source',
       },
+      ...more,
     ],
     pades ? (doc) => addSignaturePlaceholder(doc, pades) : undefined,
   );
@@ -353,5 +356,6 @@ export function renderCertificate(data: CheckDocumentData, pades?: PadesOptions)
     'The statement of conformity supports, and does not replace, the quality system of the user, local regulations and accredited practice.',
   );
   page.end(`End of certificate ${issue.number} revision ${issue.revision}`);
-  return closeIssued(page, opened, data, pades);
+  // The hybrid certificate: the DCC travels beside the record, as data a receiving lab reads.
+  return closeIssued(page, opened, data, pades, [dccAttachment(data)]);
 }
