@@ -76,6 +76,7 @@ import { historyOps, registerFlagsAll } from './ops-history';
 import { registerRowOfMeter } from '../../db/queries/summaries';
 import { sweepOps } from './ops-sweep';
 import { documentsOps } from './ops-documents';
+import { dccOps } from './ops-dcc';
 
 export { fixedClock, systemClock, worstVerdict, addMonthsIso, daysBetween, type Clock } from './support';
 import {
@@ -1047,6 +1048,7 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
     ...historyOps(ctx),
     ...sweepOps(ctx),
     ...documentsOps(ctx),
+    ...dccOps(ctx),
   };
   return asyncApi(api);
 }

@@ -9,6 +9,7 @@
 //   lab's key register; without a lab, only the key the record names), and Ed25519 verifies.
 import type { CheckRecord } from '../api/contract';
 import { INFO_KEYS } from './certificate';
+import { checkEmbeddedDcc } from './dcc-verify';
 import { readPdf, PdfReadError, type PdfContents } from './pdfread';
 import { decodeRecord, sha256Hex, type EmbeddedRecord } from './record';
 import { canonicalBytes, fingerprintOf, signaturePayload, signaturesBefore, verifyBytes } from './signatures';
@@ -199,6 +200,7 @@ export function verifyDocumentBytes(pdf: Buffer, lab?: LabEvidence): VerifyRepor
   }
 
   consistency(parsed, rec, ok, fail);
+  checkEmbeddedDcc(contents, parsed, ok, fail, skip);
   signatures(parsed, lab, issued, ok, fail, skip);
 
   if (contents.signatureByteRange) {

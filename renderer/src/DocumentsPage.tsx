@@ -4,6 +4,7 @@
 import { useEffect, useState } from 'react';
 import type { LabApi } from '../../app/api/contract';
 import type { FindingStatus, VerifyReport } from '../../app/api/contract-documents';
+import { DccDownload } from './DccDownload';
 import { IssueCertificates } from './LongWork';
 import { href } from './routes';
 import { messageOf, useLoad } from './useLoad';
@@ -135,7 +136,12 @@ export function DocumentsPage({ api }: { api: LabApi }) {
                   <tr key={`${d.number}/${d.revision}`}>
                     <th scope="row">{d.number}</th>
                     <td className="num">{d.revision}</td>
-                    <td>{d.kind}</td>
+                    <td>
+                      {d.kind}
+                      {d.kind === 'certificate' && (
+                        <DccDownload api={api} number={d.number} revision={d.revision} />
+                      )}
+                    </td>
                     <td>
                       <a href={href.meter(d.meterAssetId)}>{d.meterAssetId}</a>
                     </td>
