@@ -14,6 +14,7 @@ import type {
 } from '../api/contract-documents';
 import { verifyDocumentBytes } from '../documents/verify';
 import type { CommandContext, CommandGroup } from './command';
+import { dccTarget, writeIssuedDcc } from './commands-dcc';
 import { UsageError, table } from './format';
 
 function checkIdOf(ctx: CommandContext): number {
@@ -91,6 +92,7 @@ export function verifyText(r: VerifyReport, file: string): string {
 async function issue(ctx: CommandContext, kind: 'certificate' | 'sheet'): Promise<number> {
   const checkId = checkIdOf(ctx);
   const out = outOf(ctx);
+  const dccFile = dccTarget(ctx, kind);
   const reason = ctx.values.reason;
   const input: IssueDocumentInput = {
     checkId,
@@ -101,16 +103,20 @@ async function issue(ctx: CommandContext, kind: 'certificate' | 'sheet'): Promis
   const d: IssuedDocumentFile =
     kind === 'certificate' ? await api.issueCertificate(input) : await api.issueSheet(input);
   writeFileSync(out, Buffer.from(d.pdfBase64, 'base64'));
+  const dcc = dccFile === undefined ? undefined : await writeIssuedDcc(ctx, d, dccFile);
   const { pdfBase64, ...shown } = d;
   void pdfBase64; // the bytes went to the file, not to the screen
-  ctx.print({ ...shown, file: out }, () => issuedText(d, out));
+  ctx.print({ ...shown, file: out, ...(dcc ? { dccFile, dccSha256: dcc.sha256 } : {}) }, () =>
+    dcc ? `${issuedText(d, out)}\nwrote ${dccFile} (DCC, SHA-256 ${dcc.sha256})` : issuedText(d, out),
+  );
   return 0;
 }
 
 export const documentCommands: CommandGroup = {
-  usage: `  certificate CHECK --out FILE.pdf [--reason TEXT] [--p12 FILE]
+  usage: `  certificate CHECK --out FILE.pdf [--reason TEXT] [--p12 FILE] [--dcc FILE.xml]
                                      issue the certificate of a signed check (PDF/A-3b with its
-                                     record attached); --reason replaces the current one
+                                     record and DCC attached); --reason replaces the current one;
+                                     --dcc also writes the DCC (XML) to a file
   sheet CHECK --out FILE.pdf [--reason TEXT]   issue the check-sheet of a signed check
   worksheet REF --out FILE.pdf       the bench worksheet of a meter, to print before a check
   documents [REF]                    issued certificates and check-sheets

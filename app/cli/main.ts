@@ -16,6 +16,7 @@ import { createLabFile } from '../../sample-lab/load';
 import type { CliIo, CommandContext, CommandGroup } from './command';
 import { historyCommands } from './commands-history';
 import { documentCommands } from './commands-documents';
+import { dccCommands } from './commands-dcc';
 import { recordsCommands } from './commands-records';
 import { resolveBudgetSweepFile, resolveSweepFiles, sweepCommands } from './commands-sweep';
 import {
@@ -35,7 +36,13 @@ import {
 export type { CliIo } from './command';
 
 /** Command groups from other files (sweeps, history, records...) join the core commands here. */
-const GROUPS: CommandGroup[] = [historyCommands, recordsCommands, documentCommands, sweepCommands];
+const GROUPS: CommandGroup[] = [
+  historyCommands,
+  recordsCommands,
+  documentCommands,
+  sweepCommands,
+  dccCommands,
+];
 
 const CORE_OPTIONS: NonNullable<ParseArgsConfig['options']> = {
   db: { type: 'string' },

@@ -105,11 +105,24 @@ function coverageFactor(k: number, field: string): string {
   return s;
 }
 
+/** The shortest round-trip digits of a number between 0 and 1, written without an exponent
+ * ("1.5e-7" becomes "0.00000015"): the same digits, so it reads back to the same double. */
+function plainDecimal(x: number): string {
+  const s = String(x);
+  const m = /^(\d)(?:\.(\d+))?e-(\d+)$/.exec(s);
+  if (!m) return s;
+  return `0.${'0'.repeat(Number(m[3]) - 1)}${m[1]}${m[2] ?? ''}`;
+}
+
 /** si:probabilityValueType: 0 to 1, plain decimal (no exponent). */
 function probability(p: number, field: string): string {
   if (!(p >= 0 && p <= 1)) throw new DccError(`${field}: ${p} is not a probability (expected 0 to 1)`);
-  const s = String(p);
-  return /e/i.test(s) ? p.toFixed(20).replace(/0+$/, '') : s;
+  return plainDecimal(p);
+}
+
+/** XML 1.0 cannot carry most control characters (nor lone surrogates): they become U+FFFD. */
+function xmlText(s: string): string {
+  return s.replace(/[^\t\n\r\u0020-\uD7FF\uE000-\uFFFD\u{10000}-\u{10FFFF}]/gu, '\uFFFD');
 }
 
 // --- small builders ------------------------------------------------------------------------
@@ -118,13 +131,13 @@ type Node = XMLBuilder;
 
 function text(parent: Node, name: string, content: string): Node {
   const el = parent.ele(`dcc:${name}`);
-  el.ele('dcc:content', { lang: 'en' }).txt(content);
+  el.ele('dcc:content', { lang: 'en' }).txt(xmlText(content));
   return el;
 }
 
 function rich(parent: Node, name: string, paragraphs: string[]): Node {
   const el = parent.ele(`dcc:${name}`);
-  for (const p of paragraphs) el.ele('dcc:content', { lang: 'en' }).txt(p);
+  for (const p of paragraphs) el.ele('dcc:content', { lang: 'en' }).txt(xmlText(p));
   return el;
 }
 
@@ -166,7 +179,7 @@ function quantity(
 function identification(parent: Node, issuer: string, value: string, name: string, refType?: string): void {
   const id = parent.ele('dcc:identification', refType ? { refType } : {});
   id.ele('dcc:issuer').txt(issuer);
-  id.ele('dcc:value').txt(value);
+  id.ele('dcc:value').txt(xmlText(value));
   text(id, 'name', name);
 }
 
@@ -246,7 +259,7 @@ function administrativeData(root: Node, data: CheckDocumentData): void {
     rich(p, 'description', [
       `Signed ${s.signedAt} (Ed25519 over the record of check ${check.checkId} revision ${check.revision}); key fingerprint SHA-256 ${s.keyFingerprint}.`,
     ]);
-    p.ele('dcc:role').txt(`${s.role}: ${MEANING_TEXT[s.meaning]}`);
+    p.ele('dcc:role').txt(xmlText(`${s.role}: ${MEANING_TEXT[s.meaning]}`));
     p.ele('dcc:mainSigner').txt(String(s === main));
     p.ele('dcc:cryptElectronicSignature').txt('true');
   }
