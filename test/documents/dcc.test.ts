@@ -6,7 +6,7 @@
 // The CLI writes it with the certificate (--dcc) and for a certificate already issued (dcc).
 import { spawnSync } from 'node:child_process';
 import { createHash } from 'node:crypto';
-import { existsSync, mkdirSync, readFileSync } from 'node:fs';
+import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import fc from 'fast-check';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -241,6 +241,17 @@ describe('the certificate carries its DCC (hybrid certificate)', () => {
     expect(
       xpath(file, "count(//*[local-name()='usedMethod']/*[local-name()='norm'][.='JCGM 100:2008'])"),
     ).toBe('2');
+  });
+
+  it('is the example in docs/examples/dcc.xml, which validates', () => {
+    const example = path.resolve('docs/examples/dcc.xml');
+    // DIPLEDGER_WRITE_EXAMPLES=1 writes the example afresh after a deliberate change of the writer.
+    if (process.env.DIPLEDGER_WRITE_EXAMPLES === '1') writeFileSync(example, dccOf(certPdf).bytes);
+    expect(
+      readFileSync(example).equals(dccOf(certPdf).bytes),
+      'docs/examples/dcc.xml differs from the DCC of the demo certificate: if the writer changed on purpose, run this test with DIPLEDGER_WRITE_EXAMPLES=1',
+    ).toBe(true);
+    expect(xmllint([example])).toEqual([]);
   });
 
   it('is the same bytes each time the same record is rendered', async () => {
