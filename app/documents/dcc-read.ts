@@ -6,8 +6,10 @@
 // and which certificate and check it names. Elements are found by namespace and by the refType
 // codes the writer puts on them, never by position. Used by `verify` and by the tests.
 import { create } from 'xmlbuilder2';
-import type { CheckRecord } from '../api/contract';
 import { CONFORMITY_CODE, DCC_NS, REF, SI_NS, UNIT } from './dcc';
+import type { CheckDocumentData } from './model';
+
+type CheckRecord = CheckDocumentData['check'];
 
 /** How a difference is worded, per D-SI unit. */
 const UNIT_WORDS = {

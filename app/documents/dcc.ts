@@ -11,7 +11,6 @@
 import { create } from 'xmlbuilder2';
 import type { XMLBuilder } from 'xmlbuilder2/lib/interfaces';
 import type { Verdict } from '../engine/model';
-import type { CheckPointRecord } from '../api/contract';
 import type { CheckDocumentData } from './model';
 import type { Attachment } from './pdf';
 import {
@@ -124,6 +123,8 @@ function probability(p: number, field: string): string {
 function xmlText(s: string): string {
   return s.replace(/[^\t\n\r\u0020-\uD7FF\uE000-\uFFFD\u{10000}-\u{10FFFF}]/gu, '\uFFFD');
 }
+
+type CheckPointRecord = CheckDocumentData['check']['points'][number];
 
 // --- small builders ------------------------------------------------------------------------
 
