@@ -247,8 +247,10 @@ describe('the certificate carries its DCC (hybrid certificate)', () => {
     const example = path.resolve('docs/examples/dcc.xml');
     // DIPLEDGER_WRITE_EXAMPLES=1 writes the example afresh after a deliberate change of the writer.
     if (process.env.DIPLEDGER_WRITE_EXAMPLES === '1') writeFileSync(example, dccOf(certPdf).bytes);
+    // Signing keys are made afresh for each run: their fingerprints are the one part that differs.
+    const keyless = (b: Buffer) => b.toString('utf8').replace(/SHA-256 [0-9a-f]{64}/g, 'SHA-256 (key)');
     expect(
-      readFileSync(example).equals(dccOf(certPdf).bytes),
+      keyless(readFileSync(example)) === keyless(dccOf(certPdf).bytes),
       'docs/examples/dcc.xml differs from the DCC of the demo certificate: if the writer changed on purpose, run this test with DIPLEDGER_WRITE_EXAMPLES=1',
     ).toBe(true);
     expect(xmllint([example])).toEqual([]);
