@@ -508,7 +508,7 @@ function pointResult(results: Node, p: CheckPointRecord): void {
       k: b.coverageFactor,
       p: b.coverageProbability,
       distribution: Number.isFinite(b.effectiveDof)
-        ? `t, effective degrees of freedom ${b.effectiveDof}`
+        ? `t, effective degrees of freedom ${num(b.effectiveDof, 4)}`
         : 'normal',
     },
   );
