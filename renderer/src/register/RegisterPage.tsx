@@ -1,10 +1,9 @@
 // The register: every meter of the lab with its band, state, last verdict, due date and drift
 // or health flags, narrowed by filters and sorted by column (soonest due first), and the lab's
-// band coverage as the service reports it. Reads through the LabApi client only; the flags
-// (from the due list) and the coverage load on their own so the table shows first.
+// band coverage as the service reports it. Its data comes through useRegister (the flags and the
+// coverage load on their own so the table shows first).
 import { useCallback, useDeferredValue, useEffect, useMemo, useState } from 'react';
-import type { LabSettings, RegisterRow } from '../../../app/api/contract';
-import type { CoverageReport } from '../../../app/api/contract-history';
+import type { RegisterRow } from '../../../app/api/contract';
 import { Cautions } from '../shared/Cautions';
 import { CoverageStrip } from './CoverageStrip';
 import { RegisterFilterBar } from './RegisterFilterBar';
@@ -19,50 +18,18 @@ import {
   sortRows,
 } from './registerFilters';
 import type { RegisterFilters, Sort, SortKey } from './registerFilters';
-import { messageOf, useLoad } from '../shared/useLoad';
-import { useLab } from '../lab/LabContext';
+import { useRegister } from './useRegister';
 import './register.css';
 
 export { filterRows } from './registerFilters';
 
-/** The due list's horizon, its largest: every meter not withdrawn, with its flags. */
-const FLAGS_WITHIN_DAYS = 3650;
-
-type Load =
-  | { kind: 'loading' }
-  | { kind: 'failed'; message: string }
-  | { kind: 'ready'; lab: LabSettings; rows: RegisterRow[] };
-
 export function RegisterPage() {
-  const api = useLab();
-  const [load, setLoad] = useState<Load>({ kind: 'loading' });
+  const { load, rows, flagLoad, coverageLoad } = useRegister();
   const [filters, setFilters] = useState<RegisterFilters>(NO_FILTERS);
   const [sort, setSort] = useState<Sort>(DEFAULT_SORT);
   // Typing stays quick with thousands of rows: the table follows a keystroke behind if it must.
   const deferredFilters = useDeferredValue(filters);
 
-  useEffect(() => {
-    let live = true;
-    Promise.all([api.getLab(), api.listMeters()])
-      .then(([lab, rows]) => live && setLoad({ kind: 'ready', lab, rows }))
-      .catch((e: unknown) => live && setLoad({ kind: 'failed', message: messageOf(e) }));
-    return () => {
-      live = false;
-    };
-  }, [api]);
-
-  const [flagLoad] = useLoad(
-    async () =>
-      new Map((await api.listDue({ withinDays: FLAGS_WITHIN_DAYS })).map((r) => [r.assetId, r.flags ?? []])),
-    [api],
-  );
-  const [coverageLoad] = useLoad<CoverageReport>(() => api.coverage(), [api]);
-
-  const rows = useMemo(() => {
-    const base = load.kind === 'ready' ? load.rows : [];
-    if (flagLoad.kind !== 'ready') return base;
-    return base.map((r) => ({ ...r, flags: flagLoad.value.get(r.assetId) ?? [] }));
-  }, [load, flagLoad]);
   const shown = useMemo(
     () => sortRows(filterRows(rows, deferredFilters), sort),
     [rows, deferredFilters, sort],
