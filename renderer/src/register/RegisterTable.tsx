@@ -1,6 +1,6 @@
 // The register table: one row per meter, sortable by column, and windowed so a fleet of
 // thousands of meters mounts only the rows in view (@tanstack/react-virtual measures each row,
-// since descriptions wrap). It stays a real table for assistive technology: aria-rowcount on
+// since flags wrap). It stays a real table for assistive technology: aria-rowcount on
 // the table and aria-rowindex on each row say where a row sits in the whole list.
 import { measureElement, observeElementRect, useVirtualizer } from '@tanstack/react-virtual';
 import type { Virtualizer } from '@tanstack/react-virtual';
@@ -31,7 +31,6 @@ interface Column {
 
 export const COLUMNS: Column[] = [
   { key: 'assetId', title: 'Asset id' },
-  { key: 'description', title: 'Description' },
   { key: 'construction', title: 'Construction' },
   { key: 'band', title: 'Band', num: true },
   { key: 'state', title: 'State' },
@@ -184,8 +183,11 @@ function MeterRow({
     >
       <th scope="row" className="asset">
         <a href={href.meter(row.assetId)}>{row.assetId}</a>
+        {/* Under the id, cut to one line; the whole text on hover and for assistive technology. */}
+        <span className="asset-description" title={row.description || undefined}>
+          {row.description || <span className="muted">(no description)</span>}
+        </span>
       </th>
-      <td className="description">{row.description || <span className="muted">(no description)</span>}</td>
       <td>{row.construction === 'waveguide' ? 'Waveguide' : 'Coaxial'}</td>
       <td className="num">{formatBand(row.minHz, row.maxHz)}</td>
       <td>

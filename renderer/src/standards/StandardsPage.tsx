@@ -4,6 +4,7 @@ import { Fragment, useEffect, useState } from 'react';
 import type { Standard } from '../../../app/api/contract';
 import { dueStatus, formatDays } from '../shared/format';
 import { useLoad } from '../shared/useLoad';
+import './standards.css';
 import { useLab } from '../lab/LabContext';
 
 export function StandardsPage() {
