@@ -23,9 +23,11 @@ import { useLoad } from '../shared/useLoad';
 import '../charts/charts.css';
 import { useWidth } from '../shared/useWidth';
 import { useLab } from '../lab/LabContext';
+import { StopIcon } from '../shared/Icons';
 
+/** The stop flag's symbol is drawn (StopIcon): the no-entry character is missing from many fonts. */
 export const SEVERITY_LABEL: Record<HistoryFlag['severity'], { symbol: string; word: string }> = {
-  stop: { symbol: '⛔', word: 'Stop' },
+  stop: { symbol: '', word: 'Stop' },
   warning: { symbol: '⚠', word: 'Warning' },
   info: { symbol: 'ℹ', word: 'Note' },
 };
@@ -104,7 +106,11 @@ function Flags({ flags }: { flags: HistoryFlag[] }) {
       {flags.map((f, i) => (
         <li key={`${f.code}-${i}`} className={`flag flag-${f.severity}`}>
           <span className="flag-word">
-            <span aria-hidden="true">{SEVERITY_LABEL[f.severity].symbol}</span>{' '}
+            {f.severity === 'stop' ? (
+              <StopIcon />
+            ) : (
+              <span aria-hidden="true">{SEVERITY_LABEL[f.severity].symbol}</span>
+            )}{' '}
             {SEVERITY_LABEL[f.severity].word}
           </span>{' '}
           {f.message}
