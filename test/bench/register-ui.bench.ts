@@ -62,7 +62,8 @@ export async function figures(): Promise<BenchFigure[]> {
   const React = await import('react');
   const { createRoot } = await import('react-dom/client');
   const { RegisterPage } = await import('../../renderer/src/register/RegisterPage');
-  const { STATE_LABEL, VERDICT_LABEL, formatBand, formatDays } = await import('../../renderer/src/shared/format');
+  const { STATE_LABEL, VERDICT_LABEL, formatBand, formatDays } =
+    await import('../../renderer/src/shared/format');
   const { fleetApi, fleetRows } = await import('../e2e/fixtures/registerFleet');
   const h = React.createElement;
   type Row = ReturnType<typeof fleetRows>[number];
