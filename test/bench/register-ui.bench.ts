@@ -62,6 +62,7 @@ export async function figures(): Promise<BenchFigure[]> {
   const React = await import('react');
   const { createRoot } = await import('react-dom/client');
   const { RegisterPage } = await import('../../renderer/src/register/RegisterPage');
+  const { LabProvider } = await import('../../renderer/src/lab/LabContext');
   const { STATE_LABEL, VERDICT_LABEL, formatBand, formatDays } =
     await import('../../renderer/src/shared/format');
   const { fleetApi, fleetRows } = await import('../e2e/fixtures/registerFleet');
@@ -148,7 +149,7 @@ export async function figures(): Promise<BenchFigure[]> {
     const api = fleetApi(METERS);
     // Ready: rows shown, flags and the coverage strip loaded.
     const f = await firstRender(
-      h(RegisterPage, { api }),
+      h(LabProvider, { api }, h(RegisterPage)),
       () =>
         mountedRows() > 0 &&
         document.querySelector('[data-testid="coverage-gaps"]') !== null &&
