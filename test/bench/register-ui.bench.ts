@@ -149,7 +149,7 @@ export async function figures(): Promise<BenchFigure[]> {
     const api = fleetApi(METERS);
     // Ready: rows shown, flags and the coverage strip loaded.
     const f = await firstRender(
-      h(LabProvider, { api }, h(RegisterPage)),
+      h(LabProvider, { api, children: h(RegisterPage) }),
       () =>
         mountedRows() > 0 &&
         document.querySelector('[data-testid="coverage-gaps"]') !== null &&
