@@ -1,5 +1,6 @@
 // Lint at zero warnings. The engine is a leaf: it may import only itself and pure libraries.
 import js from '@eslint/js';
+import reactHooks from 'eslint-plugin-react-hooks';
 import tseslint from 'typescript-eslint';
 
 export default tseslint.config(
@@ -26,6 +27,16 @@ export default tseslint.config(
       '@typescript-eslint/no-floating-promises': 'error',
       '@typescript-eslint/no-unused-vars': ['error', { argsIgnorePattern: '^_' }],
       '@typescript-eslint/restrict-template-expressions': ['error', { allowNumber: true }],
+    },
+  },
+  {
+    // The rules of hooks (called unconditionally, effects list what they read) for the window.
+    files: ['renderer/src/**/*.{ts,tsx}', 'test/ui/**/*.tsx'],
+    plugins: { 'react-hooks': reactHooks },
+    rules: {
+      ...reactHooks.configs.recommended.rules,
+      // useLoad(fetcher, deps) takes its dependency list as useEffect does: check it the same way.
+      'react-hooks/exhaustive-deps': ['warn', { additionalHooks: '^useLoad$' }],
     },
   },
   {
