@@ -29,6 +29,7 @@ import { RECORDS_OPERATIONS, type RecordsApi } from './contract-records';
 import { HISTORY_OPERATIONS, type HistoryApi } from './contract-history';
 import { SWEEP_OPERATIONS, type SweepApi } from './contract-sweep';
 import { DOCUMENTS_OPERATIONS, type DocumentsApi } from './contract-documents';
+import { REGISTER_OPERATIONS, type RegisterApi } from './contract-register';
 
 export interface LabSettings {
   name: string;
@@ -195,7 +196,7 @@ export interface DueQuery {
 /** Every operation of the product: the core below and the groups in contract-*.ts files.
  * Inputs are unvalidated data at runtime; the service validates them and rejects with a
  * LabError (see errors.ts). */
-export type LabApi = CoreApi & DraftsApi & HistoryApi & RecordsApi & SweepApi & DocumentsApi;
+export type LabApi = CoreApi & DraftsApi & HistoryApi & RecordsApi & SweepApi & DocumentsApi & RegisterApi;
 
 /** The foundation: register, meters, standards, people, checks, computations, CSV. */
 export interface CoreApi {
@@ -258,4 +259,5 @@ export const OPERATIONS = {
   ...HISTORY_OPERATIONS,
   ...DOCUMENTS_OPERATIONS,
   ...SWEEP_OPERATIONS,
+  ...REGISTER_OPERATIONS,
 } as const satisfies Record<OperationName, 'read' | 'write'>;

@@ -11,9 +11,13 @@
 import { createHash } from 'node:crypto';
 import { readFileSync, writeFileSync } from 'node:fs';
 import { describe, expect, it, vi } from 'vitest';
+import type * as NodeCrypto from 'node:crypto';
+import type { LabApi } from '../../app/api/contract';
+import type * as Store from '../../db/store';
+import type { LabDb } from '../../db/store';
 
 vi.mock('node:crypto', async (importOriginal) => {
-  const real = await importOriginal<typeof import('node:crypto')>();
+  const real = await importOriginal<typeof NodeCrypto>();
   let counter = 0;
   const stream = (n: number): Buffer => {
     const out: Buffer[] = [];
@@ -45,8 +49,6 @@ const { openApi } = await import('../../app/api/open');
 const { loadBundle, readSampleBundle } = await import('../../sample-lab/load');
 const { clock } = await import('../fixtures/lab');
 const { createFleet, historyCsv } = await import('../bench/fleet-data');
-type LabApi = import('../../app/api/contract').LabApi;
-type LabDb = import('../../db/store').LabDb;
 
 const FIXTURE = new URL('../fixtures/refactor-answers.json', import.meta.url);
 const WRITE = process.env.DIPLEDGER_WRITE_EQUIVALENCE === '1';
@@ -84,7 +86,7 @@ function storedRows(db: LabDb, out: Digests, prefix: string): void {
     .all() as { name: string; sql: string }[];
   for (const t of tables) {
     // The migration log records when the file was made, by the system clock.
-    if (t.name === 'schema_migrations') continue;
+    if (t.name === 'schema_migration') continue;
     const withoutRowid = /WITHOUT\s+ROWID/i.test(t.sql);
     const rows = db
       .prepare(`SELECT * FROM "${t.name}"${withoutRowid ? '' : ' ORDER BY rowid'}`)
@@ -223,7 +225,7 @@ function dbOf(_api: LabApi): LabDb {
 
 // openApi does not hand out its database; wrap openLabDb to keep the last one opened.
 vi.mock('../../db/store', async (importOriginal) => {
-  const real = await importOriginal<typeof import('../../db/store')>();
+  const real = await importOriginal<typeof Store>();
   return {
     ...real,
     openLabDb: (...args: Parameters<typeof real.openLabDb>) => {
@@ -232,6 +234,11 @@ vi.mock('../../db/store', async (importOriginal) => {
     },
   };
 });
+
+/** The answers whose digests differ (or are missing on one side). */
+function differing(got: Digests, expected: Digests): string[] {
+  return [...new Set([...Object.keys(expected), ...Object.keys(got)])].filter((k) => got[k] !== expected[k]);
+}
 
 interface Fixture {
   note: string;
@@ -248,13 +255,13 @@ describe('answers identical to the code before the service was reorganised', () 
   it('on the demo lab', async () => {
     got.demo = await demoAnswers();
     expect(Object.keys(got.demo).length).toBeGreaterThan(100);
-    if (expected) expect(got.demo).toEqual(expected.demo);
+    if (expected) expect(differing(got.demo, expected.demo)).toEqual([]);
   }, 300_000);
 
   it(`on a ${FLEET_METERS}-meter fleet with 25 years of history`, async () => {
     got.fleet = await fleetAnswers();
     expect(Object.keys(got.fleet).length).toBeGreaterThan(FLEET_METERS * 5);
-    if (expected) expect(got.fleet).toEqual(expected.fleet);
+    if (expected) expect(differing(got.fleet, expected.fleet)).toEqual([]);
     if (WRITE) {
       const fixture: Fixture = {
         note:

@@ -8,11 +8,11 @@
 // keep the original and say what changed, by whom, when); RFC 8785 (canonical JSON); RFC 8032
 // (Ed25519).
 import { z } from 'zod';
-import { appendAudit, auditHash, GENESIS_HASH } from '../../db/queries/audit';
-import { getCheck, insertRevision } from '../../db/queries/checks';
-import { insertSweeps } from '../../db/queries/sweeps';
-import { revisionRows, sweepRows } from './check-rows';
-import { findPersonByName, insertPerson } from '../../db/queries/people';
+import { appendAudit, auditHash, GENESIS_HASH } from '../../../db/queries/audit';
+import { getCheck, insertRevision } from '../../../db/queries/checks';
+import { insertSweeps } from '../../../db/queries/sweeps';
+import { revisionRows, sweepRows } from '../checks/rows';
+import { findPersonByName, insertPerson } from '../../../db/queries/people';
 import {
   allKeys,
   allSignatures,
@@ -33,10 +33,12 @@ import {
   standardsUsed,
   type RevisionMeta,
   type StoredSignature,
-} from '../../db/queries/records';
-import type { LabDb } from '../../db/store';
+} from '../../../db/queries/records';
+import type { LabDb } from '../../../db/store';
+import { prepareCheck } from '../checks/prepare';
 import type { OpGroup, ServiceContext } from './context';
-import type { Person } from './contract';
+import { requireLab } from './lookups';
+import type { Person } from '../contract';
 import type {
   CheckRevisionView,
   IntegrityProblem,
@@ -44,8 +46,8 @@ import type {
   RecordsApi,
   SignatureMeaning,
   Signer,
-} from './contract-records';
-import { comparable, diffValues } from './records-diff';
+} from '../contract-records';
+import { comparable, diffValues } from '../records-diff';
 import {
   MIN_PASSPHRASE_LENGTH,
   canonicalBytes,
@@ -55,9 +57,9 @@ import {
   signBytes,
   unsealPrivateKey,
   verifyBytes,
-} from './records-signing';
-import { LabError, describe } from './errors';
-import { parseWith } from './support';
+} from '../records-signing';
+import { LabError, describe } from '../errors';
+import { parseWith } from '../issues';
 
 const MEANINGS: SignatureMeaning[] = ['performed', 'reviewed', 'approved'];
 
@@ -279,7 +281,7 @@ export function revisionView(ctx: ServiceContext, checkId: number, revision?: nu
 /** Every check of the lab file: SQLite's structure check, the audit chain link by link, every
  * signature against the record it covers, each key against the trail entry that enrolled it,
  * and that every locked revision carries its performer's signature. */
-export function verifyIntegrity(db: LabDb): IntegrityReport {
+export function integrityReport(db: LabDb): IntegrityReport {
   const problems: IntegrityProblem[] = [];
   const sqlite = sqliteIntegrity(db);
   if (!(sqlite.length === 1 && sqlite[0] === 'ok'))
@@ -430,283 +432,292 @@ export function verifyIntegrity(db: LabDb): IntegrityReport {
   };
 }
 
-export const recordsOps: OpGroup<keyof RecordsApi> = (ctx) => {
-  const { db, clock, actor } = ctx;
+function signerOf(ctx: ServiceContext, person: Person): Signer {
+  const key = currentKeyOf(ctx.db, person.id);
+  if (!key) throw new LabError('internal', `no key for ${person.name} after enrolling`);
+  return { person, keyFingerprint: key.sealed.fingerprint, enrolledAt: key.createdAt };
+}
 
-  function signerOf(person: Person): Signer {
-    const key = currentKeyOf(db, person.id);
-    if (!key) throw new LabError('internal', `no key for ${person.name} after enrolling`);
-    return { person, keyFingerprint: key.sealed.fingerprint, enrolledAt: key.createdAt };
-  }
+/** Checks who may sign what on the newest revision of a check; reads only. */
+function planSignature(
+  ctx: ServiceContext,
+  checkId: number,
+  person: Person,
+  wanted: SignatureMeaning | undefined,
+) {
+  const revisions = revisionsOf(ctx.db, checkId);
+  const meta = revisions[revisions.length - 1];
+  if (!meta) throw new LabError('not-found', `no check ${checkId} in this lab`);
+  const before = signaturesOf(ctx.db, meta.id);
+  const meaning = nextMeaning(before);
+  const where = `check ${checkId} revision ${meta.revision}`;
+  if (!meaning)
+    throw new LabError(
+      'refused',
+      `${where} is already performed, reviewed and approved: nothing left to sign`,
+    );
+  if (wanted && wanted !== meaning)
+    throw LabError.field(
+      'meaning',
+      wanted,
+      `"${meaning}", the next signature due`,
+      `meaning: ${where} waits for its "${meaning}" signature before "${wanted}"`,
+    );
+  const who = mayGive(meaning, person, meta.performerId);
+  if (who)
+    throw LabError.field(
+      'person',
+      person.name,
+      who,
+      `person: ${person.name} cannot sign "${meaning}" on ${where}: that takes ${who}`,
+    );
+  if (requireLab(ctx).signersMustDiffer && before.some((s) => s.personId === person.id))
+    throw LabError.field(
+      'person',
+      person.name,
+      'someone who has not signed this revision',
+      `person: ${person.name} already signed ${where}; the lab requires a different reviewer`,
+    );
+  return { meta, before, meaning, where };
+}
 
-  /** Checks who may sign what on the newest revision of a check; reads only. */
-  function planSignature(checkId: number, person: Person, wanted: SignatureMeaning | undefined) {
-    const revisions = revisionsOf(db, checkId);
-    const meta = revisions[revisions.length - 1];
-    if (!meta) throw new LabError('not-found', `no check ${checkId} in this lab`);
-    const before = signaturesOf(db, meta.id);
-    const meaning = nextMeaning(before);
-    const where = `check ${checkId} revision ${meta.revision}`;
-    if (!meaning)
-      throw new LabError(
-        'refused',
-        `${where} is already performed, reviewed and approved: nothing left to sign`,
-      );
-    if (wanted && wanted !== meaning)
-      throw LabError.field(
-        'meaning',
-        wanted,
-        `"${meaning}", the next signature due`,
-        `meaning: ${where} waits for its "${meaning}" signature before "${wanted}"`,
-      );
-    const who = mayGive(meaning, person, meta.performerId);
-    if (who)
-      throw LabError.field(
-        'person',
-        person.name,
-        who,
-        `person: ${person.name} cannot sign "${meaning}" on ${where}: that takes ${who}`,
-      );
-    if (ctx.lab().signersMustDiffer && before.some((s) => s.personId === person.id))
-      throw LabError.field(
-        'person',
-        person.name,
-        'someone who has not signed this revision',
-        `person: ${person.name} already signed ${where}; the lab requires a different reviewer`,
-      );
-    return { meta, before, meaning, where };
-  }
-
-  return {
-    enrolSigner(input) {
-      const e = parseWith(EnrolSchema, input);
-      const passphrase = passphraseOf((input as { passphrase?: unknown } | null)?.passphrase, true);
-      const existing = findPersonByName(db, e.name);
-      if (existing && currentKeyOf(db, existing.id))
-        throw new LabError('conflict', `${existing.name} already has a signing key`, [
-          {
-            field: 'name',
-            value: e.name,
-            expected: 'a person without a signing key',
-            message: `name: ${existing.name} already has a signing key`,
-          },
-        ]);
-      if (existing && e.role && e.role !== existing.role)
-        throw LabError.field(
-          'role',
-          e.role,
-          `${existing.role}, the role ${existing.name} has`,
-          `role: ${existing.name} is a ${existing.role}, not a ${e.role}`,
-        );
-      if (!existing && !e.role)
-        throw LabError.field(
-          'role',
-          undefined,
-          'technician, reviewer or administrator',
-          `role: missing; ${e.name} is new to the lab, so give a role`,
-        );
-      const sealed = generateSealedKey(passphrase);
-      let person = existing;
-      db.transaction(() => {
-        const at = clock.now();
-        if (!person) {
-          const p = { name: e.name, role: e.role as Person['role'] };
-          person = insertPerson(db, p, at);
-          appendAudit(db, {
-            at,
-            actor,
-            action: 'create',
-            entity: 'person',
-            entityId: String(person.id),
-            before: undefined,
-            after: p,
-          });
-        }
-        const keyId = insertPersonKey(db, person.id, sealed, at);
-        appendAudit(db, {
-          at,
-          actor,
-          action: 'create',
-          entity: 'person-key',
-          entityId: String(keyId),
-          before: undefined,
-          after: {
-            person: person.name,
-            personId: person.id,
-            fingerprint: sealed.fingerprint,
-            publicKeyPem: sealed.publicKeyPem,
-          },
-        });
-      })();
-      return signerOf(person as Person);
-    },
-
-    listSigners() {
-      return listSignerRows(db);
-    },
-
-    signCheck(input) {
-      const s = parseWith(SignSchema, input);
-      const passphrase = passphraseOf((input as { passphrase?: unknown } | null)?.passphrase, false);
-      const person = findPersonByName(db, s.person);
-      if (!person)
-        throw new LabError('not-found', `person: ${describe(s.person)} is not one of the lab's people`, [
-          {
-            field: 'person',
-            value: s.person,
-            expected: "one of the lab's people",
-            message: `person: ${describe(s.person)} is not one of the lab's people`,
-          },
-        ]);
-      const key = currentKeyOf(db, person.id);
-      if (!key)
-        throw LabError.field(
-          'person',
-          person.name,
-          'a person with a signing key',
-          `person: ${person.name} has no signing key yet ("dipledger person add")`,
-        );
-      planSignature(s.checkId, person, s.meaning);
-      // The passphrase is tried only after every cheaper refusal, and a wrong one writes nothing.
-      const privateKey = unsealPrivateKey(key.sealed, passphrase);
-      if (!privateKey)
-        throw new LabError(
-          'refused',
-          `the passphrase does not open ${person.name}'s signing key: nothing was signed`,
-          [
-            {
-              field: 'passphrase',
-              value: '(hidden)',
-              expected: `${person.name}'s passphrase`,
-              message: 'passphrase: not the passphrase of this signing key; nothing was signed',
-            },
-          ],
-        );
-      let signed: { checkId: number; revision: number } | undefined;
-      db.transaction(() => {
-        // Planned again inside the write lock: another process may have signed meanwhile.
-        const { meta, before, meaning, where } = planSignature(s.checkId, person, s.meaning);
-        const signedAt = clock.now();
-        const fields = {
-          printedName: person.name,
-          role: person.role,
-          meaning,
-          signedAt,
-          keyFingerprint: key.sealed.fingerprint,
-        };
-        const bytes = payloadBytes(signedContent(db, meta), fields, before);
-        const signatureB64 = signBytes(privateKey, bytes);
-        if (!verifyBytes(key.sealed.publicKeyPem, bytes, signatureB64))
-          throw new LabError('internal', `${where}: the new signature does not verify; nothing was signed`);
-        insertSignature(db, {
-          revisionId: meta.id,
-          seq: before.length + 1,
-          personId: person.id,
-          keyId: key.id,
-          printedName: person.name,
-          role: person.role,
-          meaning,
-          signedAt,
-          payloadSha256: sha256Hex(bytes),
-          signatureB64,
-        });
-        if (meta.state === 'draft') {
-          setRevisionState(db, meta.id, 'draft', 'signed');
-          // The newest signed revision is the effective one; earlier signed ones are superseded.
-          for (const older of revisionsOf(db, meta.checkId))
-            if (older.revision < meta.revision && older.state === 'signed')
-              setRevisionState(db, older.id, 'signed', 'amended');
-        }
-        appendAudit(db, {
-          at: signedAt,
-          actor,
-          action: 'sign',
-          entity: 'check',
-          entityId: String(meta.checkId),
-          before: { revision: meta.revision, state: meta.state, signatures: before.length },
-          after: {
-            revision: meta.revision,
-            state: 'signed',
-            signature: { ...fields, payloadSha256: sha256Hex(bytes) },
-          },
-        });
-        signed = { checkId: meta.checkId, revision: meta.revision };
-      })();
-      const done = signed as { checkId: number; revision: number };
-      return revisionView(ctx, done.checkId, done.revision);
-    },
-
-    amendCheck(input) {
-      const a = parseWith(AmendSchema, input);
-      const revisions = revisionsOf(db, a.checkId);
-      const newest = revisions[revisions.length - 1];
-      if (!newest) throw new LabError('not-found', `no check ${a.checkId} in this lab`);
-      const prepared = ctx.prepareCheck(a.document, 'document', {
-        createPerformer: false,
-        amendingCheckId: a.checkId,
+export function enrolSigner(ctx: ServiceContext, input: Parameters<RecordsApi['enrolSigner']>[0]) {
+  const e = parseWith(EnrolSchema, input);
+  const passphrase = passphraseOf((input as { passphrase?: unknown } | null)?.passphrase, true);
+  const existing = findPersonByName(ctx.db, e.name);
+  if (existing && currentKeyOf(ctx.db, existing.id))
+    throw new LabError('conflict', `${existing.name} already has a signing key`, [
+      {
+        field: 'name',
+        value: e.name,
+        expected: 'a person without a signing key',
+        message: `name: ${existing.name} already has a signing key`,
+      },
+    ]);
+  if (existing && e.role && e.role !== existing.role)
+    throw LabError.field(
+      'role',
+      e.role,
+      `${existing.role}, the role ${existing.name} has`,
+      `role: ${existing.name} is a ${existing.role}, not a ${e.role}`,
+    );
+  if (!existing && !e.role)
+    throw LabError.field(
+      'role',
+      undefined,
+      'technician, reviewer or administrator',
+      `role: missing; ${e.name} is new to the lab, so give a role`,
+    );
+  const sealed = generateSealedKey(passphrase);
+  let person = existing;
+  ctx.db.transaction(() => {
+    const at = ctx.clock.now();
+    if (!person) {
+      const p = { name: e.name, role: e.role as Person['role'] };
+      person = insertPerson(ctx.db, p, at);
+      appendAudit(ctx.db, {
+        at,
+        actor: ctx.actor,
+        action: 'create',
+        entity: 'person',
+        entityId: String(person.id),
+        before: undefined,
+        after: p,
       });
-      if (prepared.meter.id !== meterIdOfCheck(db, a.checkId)) {
-        const was = getCheck(db, a.checkId)?.meterAssetId ?? '?';
-        throw LabError.field(
-          'document.meter',
-          prepared.meter.meter.assetId,
-          `${was}, the meter of check ${a.checkId}`,
-          `document.meter: check ${a.checkId} is of ${was}; an amendment cannot move it to ${prepared.meter.meter.assetId}`,
-        );
-      }
-      const performer = prepared.performer as Person;
-      const revision = newest.revision + 1;
-      db.transaction(() => {
-        const at = clock.now();
-        // Re-read inside the write lock, so two amendments at once cannot take the same number.
-        const latest = revisionsOf(db, a.checkId).at(-1)?.revision ?? 0;
-        if (latest !== newest.revision)
-          throw new LabError(
-            'conflict',
-            `check ${a.checkId} was amended meanwhile (now revision ${latest}); look at it and try again`,
-          );
-        insertRevision(
-          db,
-          a.checkId,
-          revision,
-          revisionRows(prepared, performer.id, ctx.lab().decisionRule, { reason: a.reason, by: actor }),
-          at,
-        );
-        // Swept points keep their raw trace and fit in the new revision too.
-        insertSweeps(db, a.checkId, sweepRows(prepared));
-        const view = revisionView(ctx, a.checkId, revision);
-        if (view.changes.length === 0)
-          throw LabError.field(
-            'document',
-            undefined,
-            'a document that changes something',
-            `document: the same as revision ${newest.revision} of check ${a.checkId}; nothing to amend`,
-          );
-        appendAudit(db, {
-          at,
-          actor,
-          action: 'amend',
-          entity: 'check',
-          entityId: String(a.checkId),
-          before: { revision: newest.revision, state: newest.state },
-          after: { revision, reason: a.reason, changes: view.changes },
-        });
-      })();
-      return revisionView(ctx, a.checkId, revision);
-    },
+    }
+    const keyId = insertPersonKey(ctx.db, person.id, sealed, at);
+    appendAudit(ctx.db, {
+      at,
+      actor: ctx.actor,
+      action: 'create',
+      entity: 'person-key',
+      entityId: String(keyId),
+      before: undefined,
+      after: {
+        person: person.name,
+        personId: person.id,
+        fingerprint: sealed.fingerprint,
+        publicKeyPem: sealed.publicKeyPem,
+      },
+    });
+  })();
+  return signerOf(ctx, person as Person);
+}
 
-    getCheckRevision(query) {
-      const q = parseWith(RevisionQuerySchema, query);
-      return revisionView(ctx, q.checkId, q.revision);
-    },
+export function listSigners(ctx: ServiceContext) {
+  return listSignerRows(ctx.db);
+}
 
-    listAudit(query) {
-      const q = parseWith(AuditQuerySchema, query ?? {});
-      return listAuditEntries(db, q);
-    },
+export function signCheck(ctx: ServiceContext, input: Parameters<RecordsApi['signCheck']>[0]) {
+  const s = parseWith(SignSchema, input);
+  const passphrase = passphraseOf((input as { passphrase?: unknown } | null)?.passphrase, false);
+  const person = findPersonByName(ctx.db, s.person);
+  if (!person)
+    throw new LabError('not-found', `person: ${describe(s.person)} is not one of the lab's people`, [
+      {
+        field: 'person',
+        value: s.person,
+        expected: "one of the lab's people",
+        message: `person: ${describe(s.person)} is not one of the lab's people`,
+      },
+    ]);
+  const key = currentKeyOf(ctx.db, person.id);
+  if (!key)
+    throw LabError.field(
+      'person',
+      person.name,
+      'a person with a signing key',
+      `person: ${person.name} has no signing key yet ("dipledger person add")`,
+    );
+  planSignature(ctx, s.checkId, person, s.meaning);
+  // The passphrase is tried only after every cheaper refusal, and a wrong one writes nothing.
+  const privateKey = unsealPrivateKey(key.sealed, passphrase);
+  if (!privateKey)
+    throw new LabError(
+      'refused',
+      `the passphrase does not open ${person.name}'s signing key: nothing was signed`,
+      [
+        {
+          field: 'passphrase',
+          value: '(hidden)',
+          expected: `${person.name}'s passphrase`,
+          message: 'passphrase: not the passphrase of this signing key; nothing was signed',
+        },
+      ],
+    );
+  let signed: { checkId: number; revision: number } | undefined;
+  ctx.db.transaction(() => {
+    // Planned again inside the write lock: another process may have signed meanwhile.
+    const { meta, before, meaning, where } = planSignature(ctx, s.checkId, person, s.meaning);
+    const signedAt = ctx.clock.now();
+    const fields = {
+      printedName: person.name,
+      role: person.role,
+      meaning,
+      signedAt,
+      keyFingerprint: key.sealed.fingerprint,
+    };
+    const bytes = payloadBytes(signedContent(ctx.db, meta), fields, before);
+    const signatureB64 = signBytes(privateKey, bytes);
+    if (!verifyBytes(key.sealed.publicKeyPem, bytes, signatureB64))
+      throw new LabError('internal', `${where}: the new signature does not verify; nothing was signed`);
+    insertSignature(ctx.db, {
+      revisionId: meta.id,
+      seq: before.length + 1,
+      personId: person.id,
+      keyId: key.id,
+      printedName: person.name,
+      role: person.role,
+      meaning,
+      signedAt,
+      payloadSha256: sha256Hex(bytes),
+      signatureB64,
+    });
+    if (meta.state === 'draft') {
+      setRevisionState(ctx.db, meta.id, 'draft', 'signed');
+      // The newest signed revision is the effective one; earlier signed ones are superseded.
+      for (const older of revisionsOf(ctx.db, meta.checkId))
+        if (older.revision < meta.revision && older.state === 'signed')
+          setRevisionState(ctx.db, older.id, 'signed', 'amended');
+    }
+    appendAudit(ctx.db, {
+      at: signedAt,
+      actor: ctx.actor,
+      action: 'sign',
+      entity: 'check',
+      entityId: String(meta.checkId),
+      before: { revision: meta.revision, state: meta.state, signatures: before.length },
+      after: {
+        revision: meta.revision,
+        state: 'signed',
+        signature: { ...fields, payloadSha256: sha256Hex(bytes) },
+      },
+    });
+    signed = { checkId: meta.checkId, revision: meta.revision };
+  })();
+  const done = signed as { checkId: number; revision: number };
+  return revisionView(ctx, done.checkId, done.revision);
+}
 
-    verifyIntegrity() {
-      return verifyIntegrity(db);
-    },
-  };
-};
+export function amendCheck(ctx: ServiceContext, input: Parameters<RecordsApi['amendCheck']>[0]) {
+  const a = parseWith(AmendSchema, input);
+  const revisions = revisionsOf(ctx.db, a.checkId);
+  const newest = revisions[revisions.length - 1];
+  if (!newest) throw new LabError('not-found', `no check ${a.checkId} in this lab`);
+  const prepared = prepareCheck(ctx, a.document, 'document', {
+    createPerformer: false,
+    amendingCheckId: a.checkId,
+  });
+  if (prepared.meter.id !== meterIdOfCheck(ctx.db, a.checkId)) {
+    const was = getCheck(ctx.db, a.checkId)?.meterAssetId ?? '?';
+    throw LabError.field(
+      'document.meter',
+      prepared.meter.meter.assetId,
+      `${was}, the meter of check ${a.checkId}`,
+      `document.meter: check ${a.checkId} is of ${was}; an amendment cannot move it to ${prepared.meter.meter.assetId}`,
+    );
+  }
+  const performer = prepared.performer as Person;
+  const revision = newest.revision + 1;
+  ctx.db.transaction(() => {
+    const at = ctx.clock.now();
+    // Re-read inside the write lock, so two amendments at once cannot take the same number.
+    const latest = revisionsOf(ctx.db, a.checkId).at(-1)?.revision ?? 0;
+    if (latest !== newest.revision)
+      throw new LabError(
+        'conflict',
+        `check ${a.checkId} was amended meanwhile (now revision ${latest}); look at it and try again`,
+      );
+    insertRevision(
+      ctx.db,
+      a.checkId,
+      revision,
+      revisionRows(prepared, performer.id, requireLab(ctx).decisionRule, { reason: a.reason, by: ctx.actor }),
+      at,
+    );
+    // Swept points keep their raw trace and fit in the new revision too.
+    insertSweeps(ctx.db, a.checkId, sweepRows(prepared));
+    const view = revisionView(ctx, a.checkId, revision);
+    if (view.changes.length === 0)
+      throw LabError.field(
+        'document',
+        undefined,
+        'a document that changes something',
+        `document: the same as revision ${newest.revision} of check ${a.checkId}; nothing to amend`,
+      );
+    appendAudit(ctx.db, {
+      at,
+      actor: ctx.actor,
+      action: 'amend',
+      entity: 'check',
+      entityId: String(a.checkId),
+      before: { revision: newest.revision, state: newest.state },
+      after: { revision, reason: a.reason, changes: view.changes },
+    });
+  })();
+  return revisionView(ctx, a.checkId, revision);
+}
+
+export function getCheckRevision(ctx: ServiceContext, query: Parameters<RecordsApi['getCheckRevision']>[0]) {
+  const q = parseWith(RevisionQuerySchema, query);
+  return revisionView(ctx, q.checkId, q.revision);
+}
+
+export function listAudit(ctx: ServiceContext, query: Parameters<RecordsApi['listAudit']>[0]) {
+  const q = parseWith(AuditQuerySchema, query ?? {});
+  return listAuditEntries(ctx.db, q);
+}
+
+export function verifyIntegrity(ctx: ServiceContext) {
+  return integrityReport(ctx.db);
+}
+
+export const signingOps = {
+  enrolSigner,
+  listSigners,
+  signCheck,
+  amendCheck,
+  getCheckRevision,
+  listAudit,
+  verifyIntegrity,
+} satisfies OpGroup<keyof RecordsApi>;
