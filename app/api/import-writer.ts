@@ -9,7 +9,7 @@
 // import, or a thread that cannot start is written in the service's own transaction as before.
 import { Worker } from 'node:worker_threads';
 import type { LabDb } from '../../db/store';
-import type { CheckWrite } from './check-write';
+import type { CheckWrite } from '../../db/queries/check-write';
 import type { FromWriter, ToWriter } from './import-writer-thread';
 
 /** Checks sent to the thread per message: fewer messages, and still a steady flow. */

@@ -6,7 +6,7 @@ import { homedir } from 'node:os';
 import path from 'node:path';
 import { parseArgs, type ParseArgsConfig } from 'node:util';
 import { LabError } from '../api/errors';
-import { encodeJson } from '../api/json';
+import { encodeJson } from '../model/json';
 import { openApi, type OpenedLab } from '../api/open';
 import { systemClock, fixedClock } from '../api/service';
 import { StoreError } from '../../db/store';
