@@ -11,7 +11,7 @@ import { openApi, type OpenedLab } from '../api/open';
 import { systemClock, fixedClock } from '../api/service';
 import { StoreError } from '../../db/store';
 import { formatFrequency } from '../engine';
-import { labFilePath } from '../desktop/startup';
+import { labFilePath } from '../../db/lab-file';
 import { createLabFile } from '../../sample-lab/load';
 import type { CliIo, CommandContext, CommandGroup } from './command';
 import { historyCommands } from './commands-history';
