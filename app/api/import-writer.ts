@@ -135,7 +135,8 @@ export function importWriterFor(db: LabDb): Promise<ImportWriter | undefined> {
   started = new Promise<WriterThread | undefined>((resolve) => {
     let worker: Worker;
     try {
-      // No loader flags inherited: the entry registers its own (see import-writer-thread.mjs).
+      // Beside this module: the compiled thread in dist/, or the sources' entry, which registers
+      // its own loader (see import-writer-thread.mjs). No loader flags inherited.
       worker = new Worker(new URL('./import-writer-thread.mjs', import.meta.url), {
         workerData: { file },
         execArgv: [],
