@@ -8,7 +8,7 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import type { LabApi } from '../../app/api/contract';
-import { decodeJson, encodeJson } from '../../app/api/json';
+import { decodeStoredJson as decodeJson, encodeJson } from '../../db/codec/stored-json';
 import { createLabService } from '../../app/api/service';
 import { forgetSummaries, setSummariesEnabled } from '../../app/api/history/summaries';
 import type { PointResult } from '../../app/engine/model';
