@@ -12,6 +12,7 @@ import { systemClock, type Clock } from './clock';
 import type { LabApi, OperationName } from './contract';
 import { OPERATIONS } from './contract';
 import type { ContextOps, ServiceContext, SyncOps } from './ops/context';
+import { auditOps } from './ops/audit';
 import { checkOps, WRITER_THREAD_MIN_CHECKS } from './ops/checks';
 import { documentOps } from './ops/documents';
 import { draftOps } from './ops/drafts';
@@ -40,6 +41,7 @@ const OPS = {
   ...checkOps,
   ...draftOps,
   ...signingOps,
+  ...auditOps,
   ...historyOps,
   ...sweepOps,
   ...documentOps,

@@ -45,6 +45,7 @@ import { sha256Hex } from '../../documents/record';
 import { signaturePayload, signaturesBefore } from '../../documents/signatures';
 import { verifyDocumentBytes, type IssuedEvidence, type LabEvidence } from '../../documents/verify';
 import { renderWorksheet } from '../../documents/worksheet';
+import { revisionSignedContent } from '../../../db/queries/signed-content';
 import type { OpGroup, ServiceContext } from './context';
 import { getTrend } from './history';
 import { requireLab, requireMeter } from './lookups';
@@ -115,22 +116,6 @@ function toStandard(ctx: ServiceContext, s: StandardRecord): Standard {
     certificates: s.certificates.map(({ id: _id, ...c }) => c),
     dueOn,
     daysToDue: days,
-  };
-}
-
-/** What the signatures of a revision cover; mirrors the records operations' signed content. */
-function signedContentOf(ctx: ServiceContext, meta: RevisionMeta): unknown {
-  const rec = getCheck(ctx.db, meta.checkId, meta.revision);
-  if (!rec) throw new LabError('internal', `check ${meta.checkId} revision ${meta.revision} cannot be read`);
-  // State is left out of what is signed (a signed revision later marked amended still verifies).
-  const { state, ...record } = rec;
-  void state;
-  return {
-    format: 'dipledger.check-record/1',
-    record,
-    amendment: meta.amendReason === null ? null : { reason: meta.amendReason, by: meta.amendedBy },
-    standardsUsed: standardsUsed(ctx.db, meta.id, meta.date).map(({ validOnCheckDate: _v, ...s }) => s),
-    traceabilityExceptions: meta.exceptions,
   };
 }
 
@@ -223,7 +208,7 @@ function prepare(ctx: ServiceContext, kind: DocumentKind, input: z.output<typeof
       signatureB64: s.signatureB64,
     };
   });
-  const signedContent = signedContentOf(ctx, meta);
+  const signedContent = revisionSignedContent(ctx.db, meta);
   // The document must carry what the signatures really cover, or its verification would fail
   // for every reader: refuse to issue rather than print a record nobody can check.
   for (const s of signatures) {
