@@ -9,6 +9,8 @@ export default tseslint.config(
       'node_modules/**',
       'renderer/dist/**',
       'bin/**',
+      'dist/**',
+      'scripts/**',
       'app/desktop/*.cjs',
       'app/api/*.mjs',
       'test-output/**',

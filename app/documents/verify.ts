@@ -7,7 +7,7 @@
 // - the record agrees with itself (exchange fields against the recorded check, signed content);
 // - every signature: the bytes it covers rebuild to its digest, the key is the signer's (the
 //   lab's key register; without a lab, only the key the record names), and Ed25519 verifies.
-import type { CheckRecord } from '../api/contract';
+import type { CheckRecord } from '../model/records';
 import { INFO_KEYS } from './certificate';
 import { checkEmbeddedDcc } from './dcc-verify';
 import { readPdf, PdfReadError, type PdfContents } from './pdfread';

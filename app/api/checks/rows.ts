@@ -1,10 +1,10 @@
 // A prepared check as the rows the store writes: one place for recording and amending, so a
 // new revision always carries everything the first one did (points, standards, sweeps).
-import { ENGINE_VERSION } from '../engine';
-import type { DecisionRule } from '../engine/model';
-import type { NewCheckRevision } from '../../db/queries/checks';
-import type { SweepData } from '../../db/queries/sweeps';
-import type { PreparedCheck } from './service';
+import { ENGINE_VERSION } from '../../engine';
+import type { DecisionRule } from '../../engine/model';
+import type { NewCheckRevision } from '../../../db/queries/checks';
+import type { SweepData } from '../../../db/queries/sweeps';
+import type { PreparedCheck } from './prepared';
 
 export function revisionRows(
   c: PreparedCheck,

@@ -8,8 +8,8 @@
 // service's async wrapper adopts (Promise.resolve); the number is re-checked inside the single
 // write transaction, so two overlapping issues can never share a number.
 import { z } from 'zod';
-import { appendAudit } from '../../db/queries/audit';
-import { getCheck } from '../../db/queries/checks';
+import { appendAudit } from '../../../db/queries/audit';
+import { getCheck } from '../../../db/queries/checks';
 import {
   currentDocumentOfCheck,
   documentSignatureB64s,
@@ -20,8 +20,8 @@ import {
   listIssuedDocuments,
   nextDocumentNumber,
   type IssuedDocumentRecord,
-} from '../../db/queries/documents';
-import { listPeople } from '../../db/queries/people';
+} from '../../../db/queries/documents';
+import { listPeople } from '../../../db/queries/people';
 import {
   allKeys,
   keyById,
@@ -29,28 +29,30 @@ import {
   signaturesOf,
   standardsUsed,
   type RevisionMeta,
-} from '../../db/queries/records';
-import { listStandards, type StandardRecord } from '../../db/queries/standards';
-import { renderCertificate, signRendered, type RenderedDocument } from '../documents/certificate';
-import { renderCheckSheet } from '../documents/checksheet';
+} from '../../../db/queries/records';
+import { listStandards, type StandardRecord } from '../../../db/queries/standards';
+import { renderCertificate, signRendered, type RenderedDocument } from '../../documents/certificate';
+import { renderCheckSheet } from '../../documents/checksheet';
 import type {
   CheckDocumentData,
   DocumentKind,
   DocumentSignature,
   IntervalSuggestion,
   StandardUsed,
-} from '../documents/model';
-import type { PadesOptions } from '../documents/pades';
-import { sha256Hex } from '../documents/record';
-import { signaturePayload, signaturesBefore } from '../documents/signatures';
-import { verifyDocumentBytes, type IssuedEvidence, type LabEvidence } from '../documents/verify';
-import { renderWorksheet } from '../documents/worksheet';
-import type { OpGroup, ServiceContext, SyncOps } from './context';
-import type { LabApi, Standard } from './contract';
-import type { DocumentsApi, IssuedDocument, IssuedDocumentFile } from './contract-documents';
-import { LabError, describe } from './errors';
-import { historyOps } from './ops-history';
-import { parseWith } from './support';
+} from '../../documents/model';
+import type { PadesOptions } from '../../documents/pades';
+import { sha256Hex } from '../../documents/record';
+import { signaturePayload, signaturesBefore } from '../../documents/signatures';
+import { verifyDocumentBytes, type IssuedEvidence, type LabEvidence } from '../../documents/verify';
+import { renderWorksheet } from '../../documents/worksheet';
+import { revisionSignedContent } from '../../../db/queries/signed-content';
+import type { OpGroup, ServiceContext } from './context';
+import { getTrend } from './history';
+import { requireLab, requireMeter } from './lookups';
+import type { Standard } from '../contract';
+import type { DocumentsApi, IssuedDocument, IssuedDocumentFile } from '../contract-documents';
+import { LabError, describe } from '../errors';
+import { parseWith } from '../issues';
 
 const IssueSchema = z.object({
   checkId: z
@@ -117,25 +119,9 @@ function toStandard(ctx: ServiceContext, s: StandardRecord): Standard {
   };
 }
 
-/** What the signatures of a revision cover; mirrors the records operations' signed content. */
-function signedContentOf(ctx: ServiceContext, meta: RevisionMeta): unknown {
-  const rec = getCheck(ctx.db, meta.checkId, meta.revision);
-  if (!rec) throw new LabError('internal', `check ${meta.checkId} revision ${meta.revision} cannot be read`);
-  // State is left out of what is signed (a signed revision later marked amended still verifies).
-  const { state, ...record } = rec;
-  void state;
-  return {
-    format: 'dipledger.check-record/1',
-    record,
-    amendment: meta.amendReason === null ? null : { reason: meta.amendReason, by: meta.amendedBy },
-    standardsUsed: standardsUsed(ctx.db, meta.id, meta.date).map(({ validOnCheckDate: _v, ...s }) => s),
-    traceabilityExceptions: meta.exceptions,
-  };
-}
-
 function intervalFor(ctx: ServiceContext, assetId: string): IntervalSuggestion | null {
   try {
-    const trend = (historyOps(ctx) as Pick<SyncOps<LabApi>, 'getTrend'>).getTrend(assetId);
+    const trend = getTrend(ctx, assetId);
     return {
       months: trend.suggestion.months,
       method: trend.suggestion.methodName,
@@ -156,7 +142,7 @@ interface Prepared {
 
 function prepare(ctx: ServiceContext, kind: DocumentKind, input: z.output<typeof IssueSchema>): Prepared {
   const { db } = ctx;
-  const lab = ctx.lab();
+  const lab = requireLab(ctx);
   const revisions = revisionsOf(db, input.checkId);
   if (revisions.length === 0)
     throw LabError.field(
@@ -183,7 +169,7 @@ function prepare(ctx: ServiceContext, kind: DocumentKind, input: z.output<typeof
   const check = getCheck(db, meta.checkId, meta.revision);
   if (!check)
     throw new LabError('internal', `check ${meta.checkId} revision ${meta.revision} cannot be read`);
-  const meter = ctx.meterOr404(check.meterAssetId).meter;
+  const meter = requireMeter(ctx, check.meterAssetId).meter;
   const records = listStandards(db);
   const used: StandardUsed[] = standardsUsed(db, meta.id, meta.date).map((u) => {
     const s = records.find((r) => r.assetId === u.assetId);
@@ -222,7 +208,7 @@ function prepare(ctx: ServiceContext, kind: DocumentKind, input: z.output<typeof
       signatureB64: s.signatureB64,
     };
   });
-  const signedContent = signedContentOf(ctx, meta);
+  const signedContent = revisionSignedContent(ctx.db, meta);
   // The document must carry what the signatures really cover, or its verification would fail
   // for every reader: refuse to issue rather than print a record nobody can check.
   for (const s of signatures) {
@@ -398,7 +384,7 @@ function labEvidence(ctx: ServiceContext): LabEvidence {
   const people = listPeople(db);
   const keys = allKeys(db);
   return {
-    labName: ctx.lab().name,
+    labName: requireLab(ctx).name,
     issued: (number, revision) => evidence(findIssuedDocument(db, number, revision)),
     issuedWithSha256: (sha) => evidence(findIssuedDocumentBySha256(db, sha)),
     keysOf(name) {
@@ -415,46 +401,55 @@ function labEvidence(ctx: ServiceContext): LabEvidence {
   };
 }
 
-export const documentsOps: OpGroup<keyof DocumentsApi> = (ctx) => ({
-  issueCertificate(input) {
-    return issue(ctx, 'certificate', input);
-  },
+export function issueCertificate(
+  ctx: ServiceContext,
+  input: Parameters<DocumentsApi['issueCertificate']>[0],
+) {
+  return issue(ctx, 'certificate', input);
+}
 
-  issueSheet(input) {
-    return issue(ctx, 'check-sheet', input);
-  },
+export function issueSheet(ctx: ServiceContext, input: Parameters<DocumentsApi['issueSheet']>[0]) {
+  return issue(ctx, 'check-sheet', input);
+}
 
-  worksheet(assetId) {
-    if (typeof assetId !== 'string' || assetId.trim() === '')
-      throw LabError.field('assetId', assetId, 'the asset id of a meter, such as "WG-202"');
-    const rec = ctx.meterOr404(assetId);
-    if (rec.meter.state === 'withdrawn')
-      throw LabError.field(
-        'assetId',
-        assetId,
-        'a meter that is not withdrawn',
-        `assetId: ${describe(assetId)} is withdrawn; nothing to check`,
-      );
-    const printedOn = ctx.clock.today();
-    const pdf = renderWorksheet({
-      lab: ctx.lab(),
-      meter: rec.meter,
-      standards: listStandards(ctx.db).map((s) => toStandard(ctx, s)),
-      printedOn,
-    });
-    return { assetId: rec.meter.assetId, printedOn, pdfBase64: pdf.toString('base64') };
-  },
-
-  listDocuments(query) {
-    const q = parseWith(QuerySchema, query);
-    return listIssuedDocuments(ctx.db, { meterAssetId: q?.meter, checkId: q?.checkId }).map((d) =>
-      toIssued(ctx, d),
+export function worksheet(ctx: ServiceContext, assetId: Parameters<DocumentsApi['worksheet']>[0]) {
+  if (typeof assetId !== 'string' || assetId.trim() === '')
+    throw LabError.field('assetId', assetId, 'the asset id of a meter, such as "WG-202"');
+  const rec = requireMeter(ctx, assetId);
+  if (rec.meter.state === 'withdrawn')
+    throw LabError.field(
+      'assetId',
+      assetId,
+      'a meter that is not withdrawn',
+      `assetId: ${describe(assetId)} is withdrawn; nothing to check`,
     );
-  },
+  const printedOn = ctx.clock.today();
+  const pdf = renderWorksheet({
+    lab: requireLab(ctx),
+    meter: rec.meter,
+    standards: listStandards(ctx.db).map((s) => toStandard(ctx, s)),
+    printedOn,
+  });
+  return { assetId: rec.meter.assetId, printedOn, pdfBase64: pdf.toString('base64') };
+}
 
-  verifyDocument(input) {
-    const v = parseWith(VerifySchema, input);
-    const bytes = Buffer.from(v.pdfBase64, 'base64');
-    return verifyDocumentBytes(bytes, labEvidence(ctx));
-  },
-});
+export function listDocuments(ctx: ServiceContext, query: Parameters<DocumentsApi['listDocuments']>[0]) {
+  const q = parseWith(QuerySchema, query);
+  return listIssuedDocuments(ctx.db, { meterAssetId: q?.meter, checkId: q?.checkId }).map((d) =>
+    toIssued(ctx, d),
+  );
+}
+
+export function verifyDocument(ctx: ServiceContext, input: Parameters<DocumentsApi['verifyDocument']>[0]) {
+  const v = parseWith(VerifySchema, input);
+  const bytes = Buffer.from(v.pdfBase64, 'base64');
+  return verifyDocumentBytes(bytes, labEvidence(ctx));
+}
+
+export const documentOps = {
+  issueCertificate,
+  issueSheet,
+  worksheet,
+  listDocuments,
+  verifyDocument,
+} satisfies OpGroup<keyof DocumentsApi>;

@@ -1,19 +1,20 @@
-// Check points by the sweep method (issue 3): read the point's trace, fit its resonance, parse the
+// Check points by the sweep method: read the point's trace, fit its resonance, parse the
 // dial graduation and judge the point with the fit's u(f0) in place of the operator's lines.
-// Called from prepareCheck in service.ts; writes nothing. Problems are added to the document's
+// Called from prepareCheck (checks/prepare.ts); writes nothing. Problems are added to the document's
 // issue list, each naming its field, so one refusal still names every problem.
-import { evaluateSweepPoint } from '../engine/sweep-point';
-import { fitResonances, ResonanceError, type ResonanceReport, type Trace } from '../engine/resonance';
-import type { Conditions, DecisionRule } from '../engine/model';
-import { parseFrequencyHz } from '../engine';
-import { specOf, type Issues } from './support';
-import { readSweepFile, type SweepFile } from '../formats/sweep-file';
-import { readDelimitedTrace } from '../formats/trace-csv';
-import type { Meter } from './contract';
-import type { StandardRecord } from '../../db/queries/standards';
-import type { SweepData } from '../../db/queries/sweeps';
-import type { SweepInput } from './schemas-sweep';
-import type { PreparedPoint } from './service';
+import { evaluateSweepPoint } from '../../engine/sweep-point';
+import { fitResonances, ResonanceError, type ResonanceReport, type Trace } from '../../engine/resonance';
+import type { Conditions, DecisionRule } from '../../engine/model';
+import { parseFrequencyHz } from '../../engine';
+import type { Issues } from '../issues';
+import { specOf } from './spec';
+import { readSweepFile, type SweepFile } from '../../formats/sweep-file';
+import { readDelimitedTrace } from '../../formats/trace-csv';
+import type { Meter } from '../contract';
+import type { StandardRecord } from '../../../db/queries/standards';
+import type { SweepData } from '../../../db/queries/sweeps';
+import type { SweepInput } from '../schemas-sweep';
+import type { PreparedPoint } from './prepared';
 
 /** Number of parameters of each fit model, for the degrees of freedom of u(f0). */
 const FIT_PARAMETERS = { 'scalar-lorentzian': 5, 'complex-circle': 6 } as const;

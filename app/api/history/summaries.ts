@@ -9,9 +9,9 @@
 // 0007 and can be written at once, in the lab file too, so a new process (every CLI command)
 // reads them instead of recomputing every meter's history. A read never fails or waits for
 // want of writing them (db/queries/summaries.ts storeSummaries).
-import type { AttributeRecord } from '../engine/intervals';
-import { ENGINE_VERSION } from '../engine/version';
-import type { LabDb } from '../../db/store';
+import type { AttributeRecord } from '../../engine/intervals';
+import { ENGINE_VERSION } from '../../engine/version';
+import type { LabDb } from '../../../db/store';
 import {
   attributeChecks,
   meterGenerations,
@@ -21,17 +21,17 @@ import {
   type MeterGenerationRow,
   type StoredSummaryRow,
   type SummaryKind,
-} from '../../db/queries/summaries';
-import type { RegisterRow } from './contract';
-import type { ServiceContext } from './context';
-import { daysBetween } from './support';
+} from '../../../db/queries/summaries';
+import type { RegisterRow } from '../contract';
+import type { ServiceContext } from '../ops/context';
+import { daysBetween } from '../clock';
 
 const DAYS_PER_YEAR = 365.25;
 
 /**
  * The version of what the summaries hold, stored with each one in the lab file: a summary made
  * by another version is recomputed. Raise SUMMARY_FORMAT whenever anything that feeds them
- * changes (the flags of ops-history.ts analyseMeter and what it calls in engine/drift.ts, or
+ * changes (the flags of history/analysis.ts analyseMeter and what it calls in engine/drift.ts, or
  * attributeRecordsOf below); test/api/stored-summaries.test.ts pins what the demo lab's
  * summaries hold to this number.
  */
