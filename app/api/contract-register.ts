@@ -1,6 +1,6 @@
 // The register group: every meter's register row with its history flags, as the register page
 // shows them (the due list gives the same flags, but only for meters falling due).
-import type { RegisterRow } from './contract';
+import type { RegisterRow } from '../model/records';
 
 /** A register row whose history flags are always filled. */
 export type RegisterEntry = RegisterRow & { flags: string[] };
