@@ -3,7 +3,7 @@
 // fitted from its check points with a physical cavity model.
 import type { DipPlot } from '../engine/dipplot';
 import type { ResonanceReport } from '../engine/resonance';
-import type { ChartTableRow, DialChartFit } from '../engine/dialchart';
+import type { ChartTableRow, DialChartFit } from '../engine/dial-chart';
 import type { SweepRecord, SweepSummary } from '../../db/queries/sweeps';
 import type { ChartQueryInput, FitTraceInput } from './schemas-sweep';
 

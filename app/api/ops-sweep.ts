@@ -3,7 +3,7 @@
 // writes (swept points are written by recordCheck through prepareCheck/writeCheck).
 import { dipPlot } from '../engine/dipplot';
 import { z } from 'zod';
-import { chartTable, DialChartError, fitDialChart } from '../engine/dialchart';
+import { chartTable, DialChartError, fitDialChart } from '../engine/dial-chart';
 import { ResonanceError, fitResonances, type Trace } from '../engine/resonance';
 import { standardGuideCutoffHz } from '../engine/waveguide';
 import type { ChartPoint } from '../engine/model';
