@@ -3,28 +3,39 @@
 // MAT 58's angular weights 1 / (1 + (QL t)^2), fit, re-weight, fit, re-weight, fit to convergence
 // (A. P. Gregory, "Q-factor Measurement by using a Vector Network Analyser", NPL Report MAT 58
 // (2021), sections 2.2 and 2.4, eqs. (21) and (28); the NLQFIT6 procedure).
+// The measurement as a network analyser sees it adds a cable: an electrical delay tau turns the
+// phase by -2 pi f tau, and the baseline's magnitude may tilt. The extended model multiplies the
+// circle by (1 + k x) exp(-j p x), x = (f - fc) / s, so tau = p / (2 pi s); tau and k start from
+// the off-resonance part of the trace (baseline.ts) and are refined in the fit (MAT 58 section 2.6
+// discusses the uncalibrated line's delay and loss; the form here is our own).
 // Notch (absorption) coupling: Q-circle diameter d = |b| / |S_V|, Q0 = QL / (1 - d), Qe = QL / d,
 // so 1/QL = 1/Q0 + 1/Qe (MAT 58 section 2.5; Pozar, Microwave Engineering, 4th ed., 6.7).
 
 import { levenbergMarquardt, type LsqProblem } from '../lsq';
 import { pointsWithin, type DipFit } from './trace';
 
-/** MAT 58 complex fit (NLQFIT6 form) on the given points. */
-export function fitComplexDip(
-  frequencyHz: ArrayLike<number>,
+export interface ComplexStart {
+  f0Hz: number;
+  widthHz: number;
+  /** Electrical delay estimated from the off-resonance phase, s (0 when unknown). */
+  delayS?: number;
+}
+
+/**
+ * The circle model on scaled frequencies x, parameters [aRe, aIm, bRe, bIm, x0, g] and, extended,
+ * [k, p]: S = (1 + k x) exp(-j p x) (a + b / (1 + j u)), u = g (x - x0) = QL t.
+ */
+function circleProblem(
+  x: Float64Array,
   re: ArrayLike<number>,
   im: ArrayLike<number>,
-  start: { f0Hz: number; widthHz: number },
-): DipFit {
-  const n = frequencyHz.length;
-  const fc = start.f0Hz;
-  const s = start.widthHz;
-  const x = new Float64Array(n);
-  for (let i = 0; i < n; i++) x[i] = ((frequencyHz[i] as number) - fc) / s;
-  // Parameters [aRe, aIm, bRe, bIm, x0, g]: S = a + b / (1 + j u), u = g (x - x0) = QL t.
-  const problem: LsqProblem = {
+  extended: boolean,
+): LsqProblem {
+  const n = x.length;
+  const np = extended ? 8 : 6;
+  return {
     rows: 2 * n,
-    params: 6,
+    params: np,
     evaluate(p, r, jac) {
       const aRe = p[0] as number;
       const aIm = p[1] as number;
@@ -32,36 +43,77 @@ export function fitComplexDip(
       const bIm = p[3] as number;
       const x0 = p[4] as number;
       const g = p[5] as number;
+      const k = extended ? (p[6] as number) : 0;
+      const ph = extended ? (p[7] as number) : 0;
       if (!(g > 0)) return false;
       for (let i = 0; i < n; i++) {
-        const dx = (x[i] as number) - x0;
+        const xi = x[i] as number;
+        const dx = xi - x0;
         const u = g * dx;
         const den = 1 + u * u;
         // y = 1 / (1 + j u) = (1 - j u) / (1 + u^2)
         const yRe = 1 / den;
         const yIm = -u / den;
-        const mRe = aRe + bRe * yRe - bIm * yIm;
-        const mIm = aIm + bRe * yIm + bIm * yRe;
+        const cRe = aRe + bRe * yRe - bIm * yIm;
+        const cIm = aIm + bRe * yIm + bIm * yRe;
+        // E = (1 + k x) exp(-j p x)
+        const mag = 1 + k * xi;
+        const eRe = extended ? mag * Math.cos(ph * xi) : 1;
+        const eIm = extended ? -mag * Math.sin(ph * xi) : 0;
+        const mRe = eRe * cRe - eIm * cIm;
+        const mIm = eRe * cIm + eIm * cRe;
         r[2 * i] = (re[i] as number) - mRe;
         r[2 * i + 1] = (im[i] as number) - mIm;
         if (jac) {
-          // dS/du = b * (-j) y^2
+          // dC/du = b (-j) y^2
           const y2Re = yRe * yRe - yIm * yIm;
           const y2Im = 2 * yRe * yIm;
           const tRe = bRe * y2Re - bIm * y2Im;
           const tIm = bRe * y2Im + bIm * y2Re;
-          const dRe = tIm; // (-j)(tRe + j tIm) = tIm - j tRe
+          const dRe = tIm;
           const dIm = -tRe;
-          const k = 2 * i * 6;
-          jac.set([1, 0, yRe, -yIm, -g * dRe, dx * dRe], k);
-          jac.set([0, 1, yIm, yRe, -g * dIm, dx * dIm], k + 6);
+          // Each derivative of C times E.
+          const mul = (zr: number, zi: number): [number, number] => [
+            eRe * zr - eIm * zi,
+            eRe * zi + eIm * zr,
+          ];
+          const [a1r, a1i] = mul(1, 0);
+          const [a2r, a2i] = mul(0, 1);
+          const [b1r, b1i] = mul(yRe, yIm);
+          const [b2r, b2i] = mul(-yIm, yRe);
+          const [ur, ui] = mul(dRe, dIm);
+          const k0 = 2 * i * np;
+          const k1 = k0 + np;
+          jac[k0] = a1r;
+          jac[k1] = a1i;
+          jac[k0 + 1] = a2r;
+          jac[k1 + 1] = a2i;
+          jac[k0 + 2] = b1r;
+          jac[k1 + 2] = b1i;
+          jac[k0 + 3] = b2r;
+          jac[k1 + 3] = b2i;
+          jac[k0 + 4] = -g * ur;
+          jac[k1 + 4] = -g * ui;
+          jac[k0 + 5] = dx * ur;
+          jac[k1 + 5] = dx * ui;
+          if (extended) {
+            // dS/dk = x exp(-j p x) C = x / (1 + k x) S; dS/dp = -j x S.
+            const sk = xi / mag;
+            jac[k0 + 6] = sk * mRe;
+            jac[k1 + 6] = sk * mIm;
+            jac[k0 + 7] = xi * mIm;
+            jac[k1 + 7] = -xi * mRe;
+          }
         }
       }
       return true;
     },
   };
-  // Start: the linear least-squares a and b for the located centre and width.
-  const g0 = 2;
+}
+
+/** Linear least-squares a and b of S = a + b / (1 + j g0 x) for the located centre and width. */
+function linearStart(x: Float64Array, re: ArrayLike<number>, im: ArrayLike<number>, g0: number): number[] {
+  const n = x.length;
   let syy = 0;
   let sy = { re: 0, im: 0 };
   let ss = { re: 0, im: 0 };
@@ -90,7 +142,44 @@ export function fitComplexDip(
     re: (ss.re - (sy.re * b0.re - sy.im * b0.im)) / n,
     im: (ss.im - (sy.re * b0.im + sy.im * b0.re)) / n,
   };
-  let params: ArrayLike<number> = [a0.re, a0.im, b0.re, b0.im, 0, g0];
+  return [a0.re, a0.im, b0.re, b0.im, 0, g0];
+}
+
+/**
+ * MAT 58 complex fit (NLQFIT6 form) on the given points; with `extended`, the delay and magnitude
+ * tilt of the baseline are parameters too.
+ */
+export function fitComplexDip(
+  frequencyHz: ArrayLike<number>,
+  re: ArrayLike<number>,
+  im: ArrayLike<number>,
+  start: ComplexStart,
+  extended = false,
+): DipFit {
+  const n = frequencyHz.length;
+  const fc = start.f0Hz;
+  const s = start.widthHz;
+  const x = new Float64Array(n);
+  for (let i = 0; i < n; i++) x[i] = ((frequencyHz[i] as number) - fc) / s;
+  const problem = circleProblem(x, re, im, extended);
+  const np = problem.params;
+  const g0 = 2;
+  let params: ArrayLike<number>;
+  if (extended) {
+    // The start of a and b from the trace with the estimated delay taken out.
+    const p0 = 2 * Math.PI * (start.delayS ?? 0) * s;
+    const dRe = new Float64Array(n);
+    const dIm = new Float64Array(n);
+    for (let i = 0; i < n; i++) {
+      const c = Math.cos(p0 * (x[i] as number));
+      const sn = Math.sin(p0 * (x[i] as number));
+      const vr = re[i] as number;
+      const vi = im[i] as number;
+      dRe[i] = vr * c - vi * sn;
+      dIm[i] = vr * sn + vi * c;
+    }
+    params = [...linearStart(x, dRe, dIm, g0), 0, p0];
+  } else params = linearStart(x, re, im, g0);
   const weights = new Float64Array(2 * n);
   const angularWeights = (p: ArrayLike<number>) => {
     for (let i = 0; i < n; i++) {
@@ -116,24 +205,31 @@ export function fitComplexDip(
     number,
     number,
   ];
+  const k = extended ? (result.params[6] as number) : 0;
+  const ph = extended ? (result.params[7] as number) : 0;
   const cov = result.covariance;
   const f0Hz = fc + s * x0;
   const loadedQ = (g * f0Hz) / (2 * s);
   const dQdx0 = g / 2;
   const dQdg = f0Hz / (2 * s);
   const varQ =
-    dQdx0 * dQdx0 * (cov[4 * 6 + 4] as number) +
-    2 * dQdx0 * dQdg * (cov[4 * 6 + 5] as number) +
-    dQdg * dQdg * (cov[5 * 6 + 5] as number);
+    dQdx0 * dQdx0 * (cov[4 * np + 4] as number) +
+    2 * dQdx0 * dQdg * (cov[4 * np + 5] as number) +
+    dQdg * dQdg * (cov[5 * np + 5] as number);
   const r = new Float64Array(2 * n);
   problem.evaluate(result.params, r, null);
   let num = 0;
   let den = 0;
+  let ssr = 0;
   for (let i = 0; i < n; i++) {
     const w = weights[2 * i] as number;
-    num += w * ((r[2 * i] as number) ** 2 + (r[2 * i + 1] as number) ** 2);
+    const e2 = (r[2 * i] as number) ** 2 + (r[2 * i + 1] as number) ** 2;
+    num += w * e2;
     den += w;
+    ssr += e2;
   }
+  // At f0 the tilt factor is 1 + k x0.
+  const tilt = 1 + k * x0;
   const detuned = Math.hypot(aRe, aIm);
   const tuned = Math.hypot(aRe + bRe, aIm + bIm);
   const diameter = Math.hypot(bRe, bIm) / detuned;
@@ -143,16 +239,16 @@ export function fitComplexDip(
     diameter < 1
       ? { unloadedQ: loadedQ / (1 - diameter), externalQ: loadedQ / diameter }
       : { unloadedQ: null, externalQ: null };
-  return {
+  const fit: DipFit = {
     method: 'complex-circle',
     f0Hz,
-    f0UncertaintyHz: s * Math.sqrt(cov[4 * 6 + 4] as number),
+    f0UncertaintyHz: s * Math.sqrt(cov[4 * np + 4] as number),
     loadedQ,
     loadedQUncertainty: Math.sqrt(Math.max(varQ, 0)),
     depthDb: 20 * Math.log10(detuned / tuned),
     depthFraction: a,
-    baselineAtF0: detuned * detuned,
-    baselineSlopePerHz: 0,
+    baselineAtF0: (detuned * tilt) ** 2,
+    baselineSlopePerHz: (2 * k * tilt * detuned * detuned) / s,
     residualRms: Math.sqrt(num / den),
     halfDepthBandwidthHz: widthHz,
     twoToneResolutionHz: widthHz / Math.sqrt(3),
@@ -161,5 +257,12 @@ export function fitComplexDip(
     pointsPerLinewidth: pointsWithin(Float64Array.from(frequencyHz), f0Hz - widthHz / 2, f0Hz + widthHz / 2),
     pointsUsed: n,
     iterations: result.iterations,
+    residualSumOfSquares: ssr,
+    parameters: np,
   };
+  if (extended) {
+    fit.electricalDelayS = ph / (2 * Math.PI * s);
+    fit.electricalDelayUncertaintyS = Math.sqrt(cov[7 * np + 7] as number) / (2 * Math.PI * s);
+  }
+  return fit;
 }

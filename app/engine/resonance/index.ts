@@ -3,4 +3,5 @@
 export * from './trace';
 export { fitScalarDip, scalarProblem } from './scalar-dip';
 export { fitComplexDip } from './complex-circle';
-export { fitResonances } from './fit';
+export { fitResonances, requireTrustworthy } from './fit';
+export { CHI_SQUARE_LIMIT } from './judge';

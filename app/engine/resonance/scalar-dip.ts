@@ -385,7 +385,7 @@ function noiseMoments(y: Float64Array, r: Float64Array, acc: Float64Array): Floa
 
 /** Additive and multiplicative noise variances s_a^2, s_m^2 from residuals r of the model y - r: least
  * squares of r^2 on (1, m^2), one term alone when the other would come out negative. */
-function noiseVariances(y: Float64Array, r: Float64Array): { va: number; vm: number } {
+export function noiseVariances(y: Float64Array, r: Float64Array): { va: number; vm: number } {
   const n = y.length;
   const [s12, s22, t1, t2] = noiseMoments(y, r, new Float64Array(4)) as unknown as [
     number,
@@ -411,7 +411,7 @@ function noiseVariances(y: Float64Array, r: Float64Array): { va: number; vm: num
 }
 
 /** Weights 1 / (s_a^2 + s_m^2 m^2) at the model m = y - r, into `weights`. */
-function noiseWeights(
+export function noiseWeights(
   y: Float64Array,
   r: Float64Array,
   va: number,

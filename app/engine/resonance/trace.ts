@@ -20,7 +20,14 @@ export interface ComplexTrace {
 export type Trace = ScalarTrace | ComplexTrace;
 
 export type ResonanceErrorCode =
-  'invalid' | 'non-monotonic' | 'too-few-points' | 'no-dip' | 'edge' | 'undersampled' | 'no-fit';
+  | 'invalid'
+  | 'non-monotonic'
+  | 'too-few-points'
+  | 'no-dip'
+  | 'edge'
+  | 'undersampled'
+  | 'no-fit'
+  | 'untrustworthy';
 
 export class ResonanceError extends Error {
   constructor(
@@ -61,6 +68,43 @@ export interface DipFit {
   pointsPerLinewidth: number;
   pointsUsed: number;
   iterations: number;
+  /** Sum of squared residuals, unweighted, in the trace's units (power, or S for complex fits). */
+  residualSumOfSquares?: number;
+  /** Number of fitted parameters. */
+  parameters?: number;
+  /** Complex fits with the cable modelled: electrical delay and its standard uncertainty, s. */
+  electricalDelayS?: number;
+  electricalDelayUncertaintyS?: number;
+}
+
+/** Which model a fit asks for: chosen from the data, the complex Q-circle, or the magnitude dip. */
+export type FitModel = 'auto' | 'complex' | 'magnitude';
+
+/** The model a fit used, why, and how the other model agreed where both were fitted. */
+export interface ModelChoice {
+  requested: FitModel;
+  used: 'complex' | 'magnitude';
+  reason: string;
+  /** The other model's fit of the main dip, when both applied. */
+  alternative: DipFit | null;
+  agreement: {
+    f0DifferenceHz: number;
+    /** The f0 difference over the combined standard uncertainty of the two fits. */
+    f0DifferenceSigma: number;
+    loadedQRatio: number;
+    agree: boolean;
+  } | null;
+}
+
+/** The fit's judgement of itself. */
+export interface FitJudgement {
+  ok: boolean;
+  /** Each reason the fit cannot be trusted, in words for the user. */
+  problems: string[];
+  /** Standard deviation of the level at the baseline, from its second differences (trace units). */
+  baselineNoise: number;
+  /** Residuals against that noise: sum r^2 / ((N - p) noise^2). */
+  reducedChiSquare: number;
 }
 
 export interface ResonanceReport {
@@ -69,11 +113,16 @@ export interface ResonanceReport {
   /** Every other dip: spurious responses of the meter, deepest first. */
   spurious: DipFit[];
   notes: string[];
+  /** Absent in reports stored before the fit chose its model and judged itself. */
+  model?: ModelChoice;
+  judgement?: FitJudgement;
 }
 
 export interface FitOptions {
   /** Least number of points inside the half-depth width (default 4). */
   minPointsPerLinewidth?: number;
+  /** The model (default auto: chosen from the data). */
+  model?: FitModel;
 }
 
 export const MIN_POINTS = 8;
