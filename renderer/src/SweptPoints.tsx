@@ -37,14 +37,16 @@ export function SweptPoints({
     edit((f) => ({ ...f, points: f.points.map((p, j) => (j === i ? change(p) : p)) }));
 
   // Each attached trace is fitted once per content, also after a draft is reopened.
-  const texts = form.points.map((p) => p.sweep?.text ?? '');
+  // Keyed on the text and the model asked for, so a change of model fits again.
+  const texts = form.points.map((p) => (p.sweep ? `${p.sweep.model ?? 'auto'}\u0002${p.sweep.text}` : ''));
   const names = form.points.map((p) => p.sweep?.name ?? '');
+  const models = form.points.map((p) => p.sweep?.model);
   useEffect(() => {
     texts.forEach((text, i) => {
       if (!text || fitsRef.current[i]?.text === text) return;
       setFits((m) => ({ ...m, [i]: { text, state: { kind: 'fitting' } } }));
       api
-        .fitTrace({ text, name: names[i] })
+        .fitTrace({ text: text.slice(text.indexOf('\u0002') + 1), name: names[i], model: models[i] })
         .then((fit) =>
           setFits((m) => (m[i]?.text === text ? { ...m, [i]: { text, state: { kind: 'ok', fit } } } : m)),
         )
@@ -115,11 +117,12 @@ export function SweptPoints({
             index={i}
             point={p}
             unit={unit}
-            fit={f && f.text === p.sweep?.text ? f.state : undefined}
+            fit={f && f.text === texts[i] ? f.state : undefined}
             judged={judgeKeys[i] && judged[i]?.key === judgeKeys[i] ? judged[i]?.state : undefined}
             onDial={(v) => setPoint(i, (q) => ({ ...q, dialSetting: v }))}
             onFile={(file) => void attach(i, file)}
             onRemove={() => setPoint(i, (q) => ({ ...q, sweep: undefined }))}
+            onModel={(model) => setPoint(i, (q) => (q.sweep ? { ...q, sweep: { ...q.sweep, model } } : q))}
           />
         );
       })}
@@ -136,9 +139,11 @@ function SweptPoint(props: {
   onDial: (v: string) => void;
   onFile: (f: File | undefined) => void;
   onRemove: () => void;
+  onModel: (model: 'auto' | 'complex' | 'magnitude') => void;
 }) {
-  const { index, point, unit, fit, judged, onDial, onFile, onRemove } = props;
+  const { index, point, unit, fit, judged, onDial, onFile, onRemove, onModel } = props;
   const dialId = useId();
+  const modelId = useId();
   const fileId = useId();
   const label = `point ${index + 1} (${point.reference || 'no plan frequency'})`;
   const dialHz =
@@ -172,6 +177,20 @@ function SweptPoint(props: {
           />
         </div>
         {point.sweep && (
+          <div className="field">
+            <label htmlFor={modelId}>{label}, resonance model</label>
+            <select
+              id={modelId}
+              value={point.sweep.model ?? 'auto'}
+              onChange={(e) => onModel(e.target.value as 'auto' | 'complex' | 'magnitude')}
+            >
+              <option value="auto">chosen from the data</option>
+              <option value="complex">complex Q-circle</option>
+              <option value="magnitude">magnitude dip</option>
+            </select>
+          </div>
+        )}
+        {point.sweep && (
           <button type="button" className="button small" onClick={onRemove}>
             Detach {point.sweep.name}
           </button>
@@ -200,6 +219,18 @@ function SweptPoint(props: {
               </>
             )}
           </p>
+          {fit.fit.report.model && (
+            <p className="muted" data-testid="swept-model">
+              Model: {fit.fit.report.model.used === 'complex' ? 'complex Q-circle' : 'magnitude dip'} (
+              {fit.fit.report.model.reason})
+            </p>
+          )}
+          {fit.fit.warnings.map((w) => (
+            <p key={w} className="status error" role="alert">
+              <span aria-hidden="true">⚠ </span>
+              {w}
+            </p>
+          ))}
           <SweptVerdict judged={judged} />
           <DipChart fit={fit.fit} name={point.sweep.name} />
         </>

@@ -355,7 +355,6 @@ export function fitResonances(trace: Trace, options: FitOptions = {}): Resonance
     notes.unshift('more than one dip: the extra ones are spurious responses of the meter');
   notes.push(...extraNotes);
   if (mainFit.depthDb < 1) notes.push(`the dip is shallow (${mainFit.depthDb.toFixed(2)} dB)`);
-  for (const p of judgement.problems) notes.push(`the fit cannot be trusted: ${p}`);
   return { main: mainFit, spurious, notes, model: choice, judgement };
 }
 
