@@ -11,7 +11,7 @@
 // Notch (absorption) coupling: Q-circle diameter d = |b| / |S_V|, Q0 = QL / (1 - d), Qe = QL / d,
 // so 1/QL = 1/Q0 + 1/Qe (MAT 58 section 2.5; Pozar, Microwave Engineering, 4th ed., 6.7).
 
-import { levenbergMarquardt, type LsqProblem } from '../lsq';
+import { levenbergMarquardt, spdInverse, type LsqProblem } from '../lsq';
 import { pointsWithin, type DipFit } from './trace';
 
 export interface ComplexStart {
@@ -146,6 +146,58 @@ function linearStart(x: Float64Array, re: ArrayLike<number>, im: ArrayLike<numbe
 }
 
 /**
+ * Covariance of a fit weighted by MAT 58's angular weights W when the noise is white with one
+ * variance s^2 on every point (a network analyser's trace noise, common practice): the sandwich
+ * (J'WJ)^-1 J'W^2 J (J'WJ)^-1 s^2, s^2 from the unweighted residuals (JCGM 102:2011 6.3 for the
+ * propagation; the weights are not the inverse variances, so s^2 (J'WJ)^-1 would understate it).
+ */
+function sandwichCovariance(problem: LsqProblem, params: Float64Array, w: Float64Array): Float64Array | null {
+  const rows = problem.rows;
+  const np = problem.params;
+  const r = new Float64Array(rows);
+  const jac = new Float64Array(rows * np);
+  if (!problem.evaluate(params, r, jac)) return null;
+  const a = new Float64Array(np * np);
+  const b = new Float64Array(np * np);
+  let ssr = 0;
+  for (let i = 0; i < rows; i++) {
+    const wi = w[i] as number;
+    ssr += (r[i] as number) ** 2;
+    for (let j = 0; j < np; j++) {
+      const jj = jac[i * np + j] as number;
+      for (let k = 0; k <= j; k++) {
+        const jk = jac[i * np + k] as number;
+        a[j * np + k] = (a[j * np + k] as number) + wi * jj * jk;
+        b[j * np + k] = (b[j * np + k] as number) + wi * wi * jj * jk;
+      }
+    }
+  }
+  for (let j = 0; j < np; j++)
+    for (let k = 0; k < j; k++) {
+      a[k * np + j] = a[j * np + k] as number;
+      b[k * np + j] = b[j * np + k] as number;
+    }
+  const ai = spdInverse(a, np);
+  if (!ai) return null;
+  const s2 = ssr / (rows - np);
+  const t = new Float64Array(np * np);
+  for (let i = 0; i < np; i++)
+    for (let j = 0; j < np; j++) {
+      let v = 0;
+      for (let k = 0; k < np; k++) v += (ai[i * np + k] as number) * (b[k * np + j] as number);
+      t[i * np + j] = v;
+    }
+  const cov = new Float64Array(np * np);
+  for (let i = 0; i < np; i++)
+    for (let j = 0; j < np; j++) {
+      let v = 0;
+      for (let k = 0; k < np; k++) v += (t[i * np + k] as number) * (ai[k * np + j] as number);
+      cov[i * np + j] = v * s2;
+    }
+  return cov;
+}
+
+/**
  * MAT 58 complex fit (NLQFIT6 form) on the given points; with `extended`, the delay and magnitude
  * tilt of the baseline are parameters too.
  */
@@ -207,7 +259,7 @@ export function fitComplexDip(
   ];
   const k = extended ? (result.params[6] as number) : 0;
   const ph = extended ? (result.params[7] as number) : 0;
-  const cov = result.covariance;
+  const cov = sandwichCovariance(problem, result.params, weights) ?? result.covariance;
   const f0Hz = fc + s * x0;
   const loadedQ = (g * f0Hz) / (2 * s);
   const dQdx0 = g / 2;
