@@ -86,6 +86,42 @@ export function findDips(f: Float64Array, power: Float64Array): { candidates: Ca
   }
   const threshold = Math.max((6 * noise) / Math.sqrt(2 * half + 1), 0.01);
   const candidates: Candidate[] = [];
+  // Further dips inside one region above the threshold, beside a deeper one: a local peak in
+  // [lo, hi) that stands out of the valleys on both sides by the threshold and by 30 % of its depth
+  // (a tail of the deeper dip only falls away from it, so it has no such valley).
+  const collect = (lo: number, hi: number, m: number): void => {
+    // The deepest local peak of the range: the largest value within m points either side, not at
+    // an end of the range (there a deeper dip's tail only falls away).
+    let peak = -1;
+    for (let k = lo + m; k < hi - m; k++) {
+      const v = smooth[k] as number;
+      if (peak >= 0 && v <= (smooth[peak] as number)) continue;
+      let isPeak = true;
+      for (let q = k - m; q <= k + m && isPeak; q++) if ((smooth[q] as number) > v) isPeak = false;
+      if (isPeak) peak = k;
+    }
+    if (peak < 0) return;
+    const d = smooth[peak] as number;
+    let leftValley = d;
+    for (let k = lo; k <= peak; k++) leftValley = Math.min(leftValley, smooth[k] as number);
+    let rightValley = d;
+    for (let k = peak; k < hi; k++) rightValley = Math.min(rightValley, smooth[k] as number);
+    if (d - Math.max(leftValley, rightValley) < Math.max(threshold, 0.3 * d)) return;
+    const floor = Math.max(leftValley, rightValley);
+    let left = peak;
+    while (left > lo && (smooth[left] as number) > (d + floor) / 2) left--;
+    let right = peak;
+    while (right < hi - 1 && (smooth[right] as number) > (d + floor) / 2) right++;
+    candidates.push({
+      index: peak,
+      depth: d,
+      widthHz: Math.max((f[right] as number) - (f[left] as number), (f[1] as number) - (f[0] as number)),
+      left,
+      right,
+    });
+    collect(lo, left, m);
+    collect(right + 1, hi, m);
+  };
   let i = 0;
   while (i < n) {
     if ((smooth[i] as number) <= threshold / 2) {
@@ -111,6 +147,9 @@ export function findDips(f: Float64Array, power: Float64Array): { candidates: Ca
         left,
         right,
       });
+      const m = Math.max(2, Math.floor((right - left) / 4));
+      collect(i, left, m);
+      collect(right + 1, j, m);
     }
     i = j;
   }
