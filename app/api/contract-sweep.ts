@@ -1,4 +1,4 @@
-// Sweeps and dials (issue 3): the resonance fit of a trace on its own, the swept points of a meter
+// Sweeps and dials: the resonance fit of a trace on its own, the swept points of a meter
 // over its history (resonance, Q, depth, spurious responses), and a divisions meter's dial chart
 // fitted from its check points with a physical cavity model.
 import type { DipPlot } from '../engine/dipplot';

@@ -10,12 +10,11 @@
 // at 1 dB and 2.9 % smaller at 2.5 dB. The sweep-to-sweep scatter of the paired difference of
 // |f0 error| is about 12 % (1 dB) and 30 % (2.5 dB) of the mean error, so ten sweeps cannot tell which
 // fitter is closer: they gave ml / ours = 0.96 and 0.95, differences of 0.6 and 0.3 standard errors.
-// ml takes 0.4 to 1 s a fit here, too slow for thousands of sweeps in a benchmark of under a minute,
+// ml is far too slow for thousands of sweeps in a benchmark of under a minute,
 // so the many-sweep comparison is against the unweighted least-squares minimum computed by our
 // solver, and a separate figure checks, on every sweep ml does fit, that ml lands on that same
 // minimum (its f0 within 1 % of the fit's standard uncertainty). 2,000 sweeps at 1 dB (standard
-// error of the ratio about 0.3 %) and 500 at 2.5 dB (about 1.4 %): about 10 ms a sweep, so the
-// file takes about 40 s on an idle machine (57 s of CPU measured with other jobs loading it).
+// error of the ratio about 0.3 %) and 500 at 2.5 dB (about 1.4 %).
 //
 // The speed ratio is against ml stopped where it has converged, not after maxIterations 200: ml's
 // only stopping test is a sum of squares at or below errorTolerance (an absolute level, which a noisy

@@ -322,14 +322,13 @@ function roughStart(
 }
 
 // fitScalarDip's passes over the points, each a function of its own: V8 optimizes a small function
-// after a few calls, while a large one with inlined callees takes a long compile (over 100 ms on a
-// loaded machine, measured), during which its loops would run unoptimized.
+// after a few calls, while a large one with inlined callees takes a long compile, during which its
+// loops would run unoptimized.
 
 /**
  * Working arrays of fitScalarDip (x, y, weights and two of residuals), kept from one call to the
- * next: allocating them afresh, 400 kB for a 10,001-point trace, made each fit about 40 % slower in
- * the benchmark's process, where the garbage collector also has other work (CPU a fit, medians of
- * three runs each: 1.2-1.5 ms kept, 1.9-2.0 ms allocated; tmp measurement). One set suffices:
+ * next: allocating them afresh, 400 kB for a 10,001-point trace, made each fit markedly slower in
+ * a process where the garbage collector also has other work. One set suffices:
  * fitScalarDip runs to its end without calling anything that could call it again, it writes every
  * element before reading it, and none of these arrays outlives the call (the returned DipFit holds
  * numbers only). Not kept above SCRATCH_MAX_POINTS, so at most 4 MB stay allocated.
