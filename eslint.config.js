@@ -74,5 +74,39 @@ export default tseslint.config(
         { object: 'Math', property: 'random', message: 'app/engine is deterministic.' },
       ],
     },
+  }, // Method folders (resonance/, dial-chart/) import their engine siblings one level up.
+  {
+    files: ['app/engine/*/**/*.ts'],
+    rules: {
+      'no-restricted-imports': [
+        'error',
+        {
+          patterns: [
+            {
+              group: ['../../*'],
+              message: 'app/engine must be independent: import only from app/engine itself.',
+            },
+            {
+              group: ['node:*', 'fs', 'path', 'os', 'child_process', 'crypto', 'http', 'net'],
+              message: 'app/engine is pure: no I/O.',
+            },
+            {
+              group: ['electron', 'better-sqlite3', 'react', 'react-dom', 'pdfkit'],
+              message: 'app/engine is pure: no platform libraries.',
+            },
+          ],
+        },
+      ],
+      'no-restricted-globals': [
+        'error',
+        { name: 'Date', message: 'app/engine has no clock: take dates as inputs.' },
+        { name: 'fetch', message: 'app/engine is pure: no I/O.' },
+        { name: 'process', message: 'app/engine is pure: no process access.' },
+      ],
+      'no-restricted-properties': [
+        'error',
+        { object: 'Math', property: 'random', message: 'app/engine is deterministic.' },
+      ],
+    },
   },
 );

@@ -3,7 +3,14 @@
 // Called from prepareCheck (checks/prepare.ts); writes nothing. Problems are added to the document's
 // issue list, each naming its field, so one refusal still names every problem.
 import { evaluateSweepPoint } from '../../engine/sweep-point';
-import { fitResonances, ResonanceError, type ResonanceReport, type Trace } from '../../engine/resonance';
+import {
+  fitResonances,
+  requireTrustworthy,
+  ResonanceError,
+  type FitModel,
+  type ResonanceReport,
+  type Trace,
+} from '../../engine/resonance';
 import type { Conditions, DecisionRule } from '../../engine/model';
 import { parseFrequencyHz } from '../../engine';
 import type { Issues } from '../issues';
@@ -95,15 +102,17 @@ export function sweepTrace(
   return { file: read.value, sourceKind: read.value.source };
 }
 
-/** Fits a trace; adds an issue and returns undefined when no resonance can be had from it. */
+/** Fits a trace; adds an issue and returns undefined when no resonance can be had from it, or the
+ * fit fails its own judgement (the reason named). */
 export function fitOrIssue(
   issues: Issues,
   trace: Trace,
   field: string,
   name: string,
+  model: FitModel = 'auto',
 ): ResonanceReport | undefined {
   try {
-    return fitResonances(trace);
+    return requireTrustworthy(fitResonances(trace, { model }));
   } catch (e) {
     if (e instanceof ResonanceError) {
       issues.add(field, name, 'a sweep across one clear dip', `${field} (${name}): ${e.message}`);
@@ -162,7 +171,7 @@ export function prepareSweepPoint(c: SweepPointContext): PreparedPoint | undefin
   const read = sweepTrace(issues, sweep, `${field}.sweep`);
   if (!read || dial === undefined || !std) return undefined;
   const name = sweep.name ?? sweep.file ?? 'typed points';
-  const fit = fitOrIssue(issues, read.file.trace, `${field}.sweep`, name);
+  const fit = fitOrIssue(issues, read.file.trace, `${field}.sweep`, name, sweep.model);
   if (!fit) return undefined;
   const f0 = fit.main.f0Hz;
   if (f0 < meter.minHz || f0 > meter.maxHz) {
@@ -186,7 +195,7 @@ export function prepareSweepPoint(c: SweepPointContext): PreparedPoint | undefin
         fitDof: Math.max(
           1,
           fit.main.pointsUsed * (fit.main.method === 'complex-circle' ? 2 : 1) -
-            FIT_PARAMETERS[fit.main.method],
+            (fit.main.parameters ?? FIT_PARAMETERS[fit.main.method]),
         ),
         reference: {
           expandedUncertaintyPpm: std.certificate.expandedUncertaintyPpm,

@@ -1,9 +1,9 @@
-// Sweeps and dials (issue 3): fit a trace on its own, list a meter's swept points, read a check's
+// Sweeps and dials: fit a trace on its own, list a meter's swept points, read a check's
 // sweeps, and fit a divisions meter's dial chart from its newest check. All reads: nothing here
 // writes (swept points are written by recordCheck through prepareCheck/writeCheck).
 import { dipPlot } from '../../engine/dipplot';
 import { z } from 'zod';
-import { chartTable, DialChartError, fitDialChart } from '../../engine/dialchart';
+import { chartTable, DialChartError, fitDialChart } from '../../engine/dial-chart';
 import { ResonanceError, fitResonances, type Trace } from '../../engine/resonance';
 import { standardGuideCutoffHz } from '../../engine/waveguide';
 import type { ChartPoint } from '../../engine/model';
@@ -44,13 +44,16 @@ export function fitTrace(_ctx: ServiceContext, input: Parameters<SweepApi['fitTr
       power: Array.from(re, (r, i) => r * r + (im[i] as number) ** 2),
     };
   }
+  // The scalar method is the magnitude model on |S21|^2.
+  const model = doc.method === 'scalar' ? 'magnitude' : (doc.model ?? 'auto');
   try {
-    const report = fitResonances(trace);
+    const report = fitResonances(trace, { model });
     const out: TraceFit = {
       description: read.file.description,
       pointCount: trace.frequencyHz.length,
       report,
-      warnings: [],
+      // A fit that fails its own judgement is shown with the reasons (record and budget refuse it).
+      warnings: report.judgement?.problems.map((p) => `the fit cannot be trusted: ${p}`) ?? [],
       plot: dipPlot(trace, report.main),
     };
     return out;

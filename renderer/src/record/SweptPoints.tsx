@@ -5,6 +5,8 @@
 import { useEffect, useId, useRef, useState } from 'react';
 import type { TraceFit } from '../../../app/api/contract-sweep';
 import type { PointResult } from '../../../app/engine/model';
+
+type ModelChoice = 'auto' | 'complex' | 'magnitude';
 import { sweptBudgetDocument, sweptReadyToJudge } from './checkForm';
 import type { CheckForm, FormPoint } from './checkForm';
 import { DipChart } from '../charts/DipChart';
@@ -36,13 +38,20 @@ export function SweptPoints({
     edit((f) => ({ ...f, points: f.points.map((p, j) => (j === i ? change(p) : p)) }));
 
   // Each attached trace is fitted once per content, also after a draft is reopened.
-  const tracesKey = JSON.stringify(form.points.map((p) => [p.sweep?.text ?? '', p.sweep?.name ?? '']));
+  // Keyed on the text and the model asked for, so a change of model fits again.
+  const tracesKey = JSON.stringify(
+    form.points.map((p) => [
+      p.sweep ? `${p.sweep.model ?? 'auto'}\u0002${p.sweep.text}` : '',
+      p.sweep?.name ?? '',
+      p.sweep?.model ?? null,
+    ]),
+  );
   useEffect(() => {
-    (JSON.parse(tracesKey) as [string, string][]).forEach(([text, name], i) => {
+    (JSON.parse(tracesKey) as [string, string, ModelChoice | null][]).forEach(([text, name, model], i) => {
       if (!text || fitsRef.current[i]?.text === text) return;
       setFits((m) => ({ ...m, [i]: { text, state: { kind: 'fitting' } } }));
       api
-        .fitTrace({ text, name })
+        .fitTrace({ text: text.slice(text.indexOf('\u0002') + 1), name, model: model ?? undefined })
         .then((fit) =>
           setFits((m) => (m[i]?.text === text ? { ...m, [i]: { text, state: { kind: 'ok', fit } } } : m)),
         )
@@ -114,11 +123,16 @@ export function SweptPoints({
             index={i}
             point={p}
             unit={unit}
-            fit={f && f.text === p.sweep?.text ? f.state : undefined}
+            fit={
+              f && f.text === (p.sweep ? `${p.sweep.model ?? 'auto'}\u0002${p.sweep.text}` : '')
+                ? f.state
+                : undefined
+            }
             judged={judgeKeys[i] && judged[i]?.key === judgeKeys[i] ? judged[i]?.state : undefined}
             onDial={(v) => setPoint(i, (q) => ({ ...q, dialSetting: v }))}
             onFile={(file) => void attach(i, file)}
             onRemove={() => setPoint(i, (q) => ({ ...q, sweep: undefined }))}
+            onModel={(model) => setPoint(i, (q) => (q.sweep ? { ...q, sweep: { ...q.sweep, model } } : q))}
           />
         );
       })}
@@ -135,9 +149,11 @@ function SweptPoint(props: {
   onDial: (v: string) => void;
   onFile: (f: File | undefined) => void;
   onRemove: () => void;
+  onModel: (model: 'auto' | 'complex' | 'magnitude') => void;
 }) {
-  const { index, point, unit, fit, judged, onDial, onFile, onRemove } = props;
+  const { index, point, unit, fit, judged, onDial, onFile, onRemove, onModel } = props;
   const dialId = useId();
+  const modelId = useId();
   const fileId = useId();
   const label = `point ${index + 1} (${point.reference || 'no plan frequency'})`;
   const dialHz =
@@ -171,6 +187,20 @@ function SweptPoint(props: {
           />
         </div>
         {point.sweep && (
+          <div className="field">
+            <label htmlFor={modelId}>{label}, resonance model</label>
+            <select
+              id={modelId}
+              value={point.sweep.model ?? 'auto'}
+              onChange={(e) => onModel(e.target.value as 'auto' | 'complex' | 'magnitude')}
+            >
+              <option value="auto">chosen from the data</option>
+              <option value="complex">complex Q-circle</option>
+              <option value="magnitude">magnitude dip</option>
+            </select>
+          </div>
+        )}
+        {point.sweep && (
           <button type="button" className="button small" onClick={onRemove}>
             Detach {point.sweep.name}
           </button>
@@ -199,6 +229,18 @@ function SweptPoint(props: {
               </>
             )}
           </p>
+          {fit.fit.report.model && (
+            <p className="muted" data-testid="swept-model">
+              Model: {fit.fit.report.model.used === 'complex' ? 'complex Q-circle' : 'magnitude dip'} (
+              {fit.fit.report.model.reason})
+            </p>
+          )}
+          {fit.fit.warnings.map((w) => (
+            <p key={w} className="status error" role="alert">
+              <span aria-hidden="true">⚠ </span>
+              {w}
+            </p>
+          ))}
           <SweptVerdict judged={judged} />
           <DipChart fit={fit.fit} name={point.sweep.name} />
         </>

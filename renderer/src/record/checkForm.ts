@@ -15,7 +15,7 @@ export interface FormPoint {
   /** Sweep method: the graduation the dial was set to, as typed (the column's unit left off)... */
   dialSetting?: string;
   /** ...and the trace swept across the dip there, as read from its file. */
-  sweep?: { name: string; text: string };
+  sweep?: { name: string; text: string; model?: 'auto' | 'complex' | 'magnitude' };
 }
 
 export interface CheckForm {
@@ -147,7 +147,7 @@ export function toDocument(
           phase: p.phase,
           ...(p.standard ? { standard: p.standard } : {}),
           dialSetting: readingValue(p.dialSetting ?? '', unit),
-          ...(p.sweep ? { sweep: { name: p.sweep.name, text: p.sweep.text } } : {}),
+          ...(p.sweep ? { sweep: { ...p.sweep } } : {}),
           ...(dip !== undefined ? { dipDepthDb: dip } : {}),
           // A draft keeps the typed reference, should the method be switched back.
           ...(keep ? { reference: p.reference } : {}),
@@ -202,10 +202,15 @@ export function fromDocument(doc: Record<string, unknown>, unit: string, today: 
   };
 }
 
-function sweepOf(v: unknown): { name: string; text: string } | undefined {
+function sweepOf(v: unknown): FormPoint['sweep'] {
   if (typeof v !== 'object' || v === null) return undefined;
-  const { name, text } = v as { name?: unknown; text?: unknown };
-  return typeof text === 'string' ? { name: typeof name === 'string' ? name : 'trace', text } : undefined;
+  const { name, text, model } = v as { name?: unknown; text?: unknown; model?: unknown };
+  if (typeof text !== 'string') return undefined;
+  return {
+    name: typeof name === 'string' ? name : 'trace',
+    text,
+    ...(model === 'complex' || model === 'magnitude' ? { model } : {}),
+  };
 }
 
 export interface Availability {
@@ -292,6 +297,6 @@ export function sweptBudgetDocument(form: CheckForm, p: FormPoint, unit: string)
       humidityPct: Number(form.humidityPct),
     },
     dialSetting: readingValue(p.dialSetting ?? '', unit),
-    sweep: { name: p.sweep?.name, text: p.sweep?.text },
+    sweep: { name: p.sweep?.name, text: p.sweep?.text, model: p.sweep?.model },
   };
 }
