@@ -1,0 +1,34 @@
+// Mutation testing of the engine (npm run test:mutation; not part of npm test: it takes minutes).
+// StrykerJS changes the engine's code one small step at a time (a + for a -, a < for a <=, a
+// condition forced true...) and runs the engine and reference tests against each change; a change
+// no test notices ("survived") is behaviour nobody has pinned down. The JSON report goes to
+// reports/mutation/ (git-ignored). While working on one module:
+//   npx stryker run --mutate app/engine/budget.ts
+// Mutants that cannot change a result are excluded where they stand, each with its reason, by a
+// `// Stryker disable next-line <mutator>: <reason>` comment in the engine source.
+/** @type {import('@stryker-mutator/api/core').PartialStrykerOptions} */
+export default {
+  testRunner: 'vitest',
+  vitest: { configFile: 'vitest.mutation.config.ts' },
+  plugins: ['@stryker-mutator/vitest-runner'],
+  mutate: [
+    'app/engine/budget.ts',
+    'app/engine/conformity.ts',
+    'app/engine/correction.ts',
+    'app/engine/refractivity.ts',
+    'app/engine/intervals.ts',
+    'app/engine/drift.ts',
+    'app/engine/evaluate.ts',
+  ],
+  coverageAnalysis: 'perTest',
+  // Two cores shared with other work: one test process at a time.
+  concurrency: 1,
+  timeoutMS: 20000,
+  reporters: ['json', 'clear-text', 'progress'],
+  jsonReporter: { fileName: 'reports/mutation/mutation.json' },
+  htmlReporter: { fileName: 'reports/mutation/mutation.html' },
+  tempDirName: 'tmp/stryker',
+  incremental: false,
+  cleanTempDir: 'always',
+  thresholds: { high: 85, low: 75, break: null },
+};
