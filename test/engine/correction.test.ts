@@ -1,5 +1,5 @@
 // Correction to reference conditions (app/engine/correction.ts, thermal.ts).
-import { beforeAll, describe, expect, it } from 'vitest';
+import { beforeEach, describe, expect, it } from 'vitest';
 import {
   correctToReference,
   correctedFrequencyHz,
@@ -69,7 +69,7 @@ describe('sensitivities by finite difference of f_c = f_read / g', () => {
   };
   const f = 9.3e9;
   let s: ReturnType<typeof correctionSensitivities>;
-  beforeAll(() => {
+  beforeEach(() => {
     s = correctionSensitivities(f, inputs, reference);
   });
   const fcAt = (change: Partial<CorrectionInputs>) =>

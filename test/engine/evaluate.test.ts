@@ -1,5 +1,5 @@
 // One point from readings to verdict (app/engine/evaluate.ts), with hand-checkable numbers.
-import { beforeAll, describe, expect, it } from 'vitest';
+import { beforeEach, describe, expect, it } from 'vitest';
 import { evaluatePoint } from '../../app/engine/evaluate';
 import { toleranceHz } from '../../app/engine/conformity';
 import { coverageFactor } from '../../app/engine/distributions';
@@ -51,7 +51,7 @@ function line(result: PointResult, key: Contribution['key']): Contribution {
 
 describe('direct-reading meter at 9.3 GHz, bench 3 K warm', () => {
   let r: PointResult;
-  beforeAll(() => {
+  beforeEach(() => {
     r = evaluatePoint(directSpec, warmBench, directPoint, { kind: 'simple' });
   });
 
@@ -131,7 +131,7 @@ describe('direct-reading meter at 9.3 GHz, bench 3 K warm', () => {
 
 describe('budget sensitivities by finite difference of the whole evaluation', () => {
   let base: PointResult;
-  beforeAll(() => {
+  beforeEach(() => {
     base = evaluatePoint(directSpec, warmBench, directPoint, { kind: 'simple' });
   });
   const errorWith = (spec: MeterSpec, conditions: Conditions, point: PointInput = directPoint) =>
@@ -193,7 +193,7 @@ const divisionsPoint: PointInput = {
 
 describe('divisions meter through its chart', () => {
   let r: PointResult;
-  beforeAll(() => {
+  beforeEach(() => {
     r = evaluatePoint(divisionsSpec, atReference, divisionsPoint, { kind: 'non-binary' });
   });
 

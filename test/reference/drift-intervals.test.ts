@@ -2,7 +2,7 @@
 // beside each check.
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
-import { beforeAll, describe, expect, it } from 'vitest';
+import { beforeEach, describe, expect, it } from 'vitest';
 import { fitLine, predict, projectedExit } from '../../app/engine/drift';
 import {
   METHOD_NAMES,
@@ -32,10 +32,11 @@ function norris(): { x: number; y: number }[] {
 }
 
 describe('straight-line fit: NIST StRD linear regression dataset Norris (certified values)', () => {
-  // Computed in beforeAll, not at collection: an engine change that throws must fail a test.
+  // Computed before each test, not at collection: an engine change that throws must fail a test,
+  // and the mutation run must see which test reached which code.
   let pts: { x: number; y: number }[] = [];
   let fit: ReturnType<typeof fitLine>;
-  beforeAll(() => {
+  beforeEach(() => {
     pts = norris();
     fit = fitLine(pts); // equal weights, scale from the residuals, as the certified values
   });
@@ -72,7 +73,7 @@ describe('prediction interval: NIST/SEMATECH e-Handbook 4.5.1.2 (single new obse
   const sxx = pts.reduce((s, p) => s + (p.x - xbar) ** 2, 0);
   const sigma = 0.884796396144373;
   let fit: ReturnType<typeof fitLine>;
-  beforeAll(() => {
+  beforeEach(() => {
     fit = fitLine(pts);
   });
 
@@ -114,7 +115,7 @@ describe('attributes method: NCSL International RP-1 table D-1 data, exponential
     for (let i = 0; i < n; i++) records.push({ interval: weeks, inTolerance: i < x });
   }
   let fit: ReturnType<typeof fitExponentialReliability>;
-  beforeAll(() => {
+  beforeEach(() => {
     fit = fitExponentialReliability(records);
   });
 

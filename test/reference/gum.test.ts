@@ -1,5 +1,5 @@
 // External-reference checks of the GUM budget arithmetic (JCGM 100:2008).
-import { beforeAll, describe, expect, it } from 'vitest';
+import { beforeEach, describe, expect, it } from 'vitest';
 import fc from 'fast-check';
 import {
   combine,
@@ -33,7 +33,7 @@ describe('JCGM 100:2008 G.4.1 example (Welch-Satterthwaite)', () => {
   // relative standard uncertainties 0.25 % (N = 10, nu = 9), 0.57 % (N = 5, nu = 4) and
   // 0.82 % (N = 15, nu = 14); u_c/y = 1.03 %, nu_eff = 19.0, t_95(19) = 2.09, U_95 = 2.2 %.
   let budget95: Budget;
-  beforeAll(() => {
+  beforeEach(() => {
     budget95 = combine(
       [
         relativeLine('repeatability', 0.25, 9),
