@@ -62,6 +62,11 @@ describe('straight-line fit (e-Handbook 4.4.3; weighted 4.4.3.2)', () => {
     expect(stated.sumWeights).toBe(1.25);
   });
 
+  it('an unweighted fit has no stated u: its scatter sets the scale whatever scale was asked for', () => {
+    const pts = [0, 1, 2, 3, 4].map((x, i) => ({ x, y: x + 0.1 * [1, -1, 0, -1, 1][i]! }));
+    expect(fitLine(pts, 'residual-or-stated').unitVariance).toBeCloseTo(0.04 / 3, 14);
+  });
+
   it('refuses mixed, non-positive or infinite point uncertainties, non-finite points and a single x', () => {
     expect(() =>
       fitLine([
@@ -258,6 +263,14 @@ describe('segments and fits per frequency', () => {
     expect(a.segmentStartYears).toBe(0);
   });
 
+  it('checks at the same time are in order; at a single time they give no line and no step test', () => {
+    const same = history([[0], [1], [2], [3]], [1e10]).map((c) => ({ ...c, tYears: 2 }));
+    const a = analyseDrift(same);
+    expect(a.steps).toEqual([]);
+    expect(a.frequencies[0]!.fit).toBe(null);
+    expect(a.pooled).toBe(null);
+  });
+
   it('no checks: nothing to fit', () => {
     const a = analyseDrift([]);
     expect(a).toEqual({
@@ -307,6 +320,16 @@ describe('pooled drift: one drift common to the band, an offset per frequency', 
     ])!;
     expect(stated.uDriftPpmPerYear).toBeCloseTo(Math.sqrt(1 / 0.2), 12);
     expect(stated.driftPpmPerYear).toBeCloseTo(5, 12);
+  });
+
+  it('without stated u the residual scale applies, even when the scatter is small', () => {
+    const small = (a: number) =>
+      [0, 1, 2, 3, 4].map((x, i) => ({ x, y: a + 5 * x + 0.1 * [1, -1, 0, -1, 1][i]! }));
+    const p = pooledDrift([
+      { frequencyHz: 1, points: small(0) },
+      { frequencyHz: 2, points: small(7) },
+    ])!;
+    expect(p.uDriftPpmPerYear).toBeCloseTo(Math.sqrt(0.08 / 7 / 20), 12);
   });
 
   it('weights each point by 1/u^2', () => {
@@ -360,6 +383,8 @@ describe('health of the resonance (thresholds are this product choice: common pr
     expect(h.fading).toBe(true);
     expect(analyseHealth(checks([10, 7.5]), 1).fading).toBe(false);
     expect(analyseHealth(checks([4]), 1).dipFallFraction).toBe(null);
+    // No dip at the first check (0 dB): a fraction of nothing is not defined.
+    expect(analyseHealth(checks([0, 0]), 1).dipFallFraction).toBe(null);
   });
 
   it('a rising or steady dip has no date of reaching the minimum; below the minimum is flagged', () => {

@@ -150,11 +150,14 @@ describe('alert zone (the lab policy: 80 % of the tolerance used and not adjuste
     expect(a.rationale).toBe(`Suggested interval 6 months (now 12). ${a.reason}`);
   });
 
-  it('names an out-of-tolerance finding as such', () => {
+  it('names an out-of-tolerance finding as such; exactly 100 % is still in tolerance', () => {
     const a = applyAlertZone(longer, { worstUsedFraction: 1.2, adjusted: false }, policy);
     expect(a.reason).toMatch(
       /found the meter out of tolerance \(120 % of its tolerance\) and it was not adjusted/,
     );
+    // A result on the limit has not passed beyond it (conformity.ts, ILAC-G8:09/2019 4.2.1).
+    const onLimit = applyAlertZone(longer, { worstUsedFraction: 1, adjusted: false }, policy);
+    expect(onLimit.reason).toMatch(/found the meter using 100 % of its tolerance, at or above/);
   });
 
   it('keeps a method result that is already shorter, and flags it', () => {
@@ -241,6 +244,17 @@ describe('variables-data method (JCGM 106:2012 7 with the e-Handbook 4.5.1.2 pre
     expect(s.reason).toMatch(
       /keeps the predicted probability of conformity at or above the target of 95\.0 % for at least 37 months \(lowest \d+\.\d %, at 10 GHz\)\./,
     );
+  });
+
+  it('a p_c exactly at the target meets it (p_c >= target), at the last check and at a month end', () => {
+    const f = drifting(1e10, 800, 100);
+    const atStart = variablesInterval([f], 0, predictedConformity(f, 0), 48);
+    expect(atStart.months).toBeGreaterThan(0);
+    const free = variablesInterval([f], 0, 0.95, 48);
+    const m = free.months;
+    const exactly = variablesInterval([f], 0, predictedConformity(f, m / 12), 48);
+    expect(exactly.months).toBe(m);
+    expect(exactly.conformityAtEnd).toBe(predictedConformity(f, m / 12));
   });
 
   it('states the month after the interval and the p_c it falls to', () => {

@@ -119,6 +119,8 @@ describe('refused inputs (a computation that cannot judge its result refuses wit
     );
     expect(d.verdict).toBe('pass');
     expect(d.probabilityOfConformity).toBe(1);
+    // With U = 0 the ratio T/U is taken as unbounded, even for T = 0 (common practice).
+    expect(d.tur).toBe(Infinity);
   });
 
   it('refuses a negative or missing guard band', () => {
