@@ -28,6 +28,8 @@ export default {
   jsonReporter: { fileName: 'reports/mutation/mutation.json' },
   htmlReporter: { fileName: 'reports/mutation/mutation.html' },
   tempDirName: 'tmp/stryker',
+  // Not copied into the sandbox: scratch files, reports and other runs' sandboxes.
+  ignorePatterns: ['tmp', 'reports', 'test-output', 'renderer/dist'],
   // Reuses the results of mutants whose code and covering tests did not change since the last run
   // (a fresh clone has no such file and runs everything; `npx stryker run --force` does too).
   incremental: true,
