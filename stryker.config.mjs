@@ -6,6 +6,15 @@
 //   npx stryker run --mutate app/engine/budget.ts
 // Mutants that cannot change a result are excluded where they stand, each with its reason, by a
 // `// Stryker disable next-line <mutator>: <reason>` comment in the engine source.
+//
+// Figures of the last runs (StrykerJS 9.6.1, one module at a time, 2026-12-03; killed includes
+// timeouts; score = killed / (killed + survived + no coverage); ignored = excluded below or static):
+//   module        killed  survived  timeout  no-cov  ignored  score    (before: first measurement)
+//   budget            91         0        0       0       31  100.0 %  (41.8 %)
+//   conformity       122         0        0       0        3  100.0 %  (71.2 %)
+//   correction        37         0        0       0        0  100.0 %  (100 %)
+//   intervals        364        16        1       1        6   95.5 %  (49.0 %)
+//   refractivity, drift, evaluate: not re-measured yet (before: 100 %, 57.9 %, not measured).
 /** @type {import('@stryker-mutator/api/core').PartialStrykerOptions} */
 export default {
   testRunner: 'vitest',
