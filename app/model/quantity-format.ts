@@ -332,3 +332,78 @@ export function formatProbability(p: number): string {
 export function formatFactor(x: number, digits = 3): string {
   return plain(x, digits);
 }
+
+/** Unit symbols as printed: the engine's plain-text 'degC' as °C, '1/K' as ppm/K (see header). */
+export function unitSymbol(unit: string): string {
+  if (unit === 'degC') return '°C';
+  if (unit === '1/K') return 'ppm/K';
+  return unit;
+}
+
+/**
+ * A value in one of the engine's input units: hertz with a prefix, '1/K' as ppm/K, the others
+ * (°C, hPa, %RH, div) with `digits` significant digits: formatInUnit(0.2, 'degC') = "0.200 °C".
+ */
+export function formatInUnit(x: number, unit: string, digits = 3, style: NumberStyle = {}): string {
+  if (unit === 'Hz') return formatHz(x, { ...style, digits });
+  if (unit === '1/K') return formatPerKelvin(x, digits, style);
+  const text = x === 0 ? '0' : significant(x, digits, style);
+  return `${text} ${unitSymbol(unit)}`;
+}
+
+/**
+ * A sensitivity coefficient c_i = ∂y/∂x_i with y in hertz: dimensionless for an input in Hz
+ * ("-1.00"), Hz·K for an input per kelvin ("-2.40 GHz·K"), else Hz per unit ("-9.30 kHz/°C").
+ */
+export function formatSensitivity(c: number, inputUnit: string, digits = 3, style: NumberStyle = {}): string {
+  if (inputUnit === 'Hz') return c === 0 ? '0' : significant(c, digits, style);
+  if (inputUnit === '1/K') return formatQuantity(c, 'Hz·K', { ...style, digits });
+  return formatQuantity(c, `Hz/${unitSymbol(inputUnit)}`, { ...style, digits });
+}
+
+// "1.00e+5 Hz", "200000 Hz": a number in e-notation, or a whole number of 1000 or more, before a
+// unit of hertz (engine labels and notes are fixed text made when the point was computed).
+const HZ_IN_TEXT = /(?<![\w.])(\d+(?:\.\d+)?e[+-]?\d+|\d{4,}(?:\.\d+)?) ?Hz\b/g;
+
+/**
+ * Text with its frequencies rewritten with SI prefixes: "pooled s = 1.00e+5 Hz" becomes
+ * "pooled s = 100 kHz", "200000 Hz" becomes "200 kHz". The digits written are kept (a value
+ * given to three figures stays at three), trailing zeros of whole numbers are not counted.
+ */
+export function withPrefixedHz(text: string): string {
+  return text.replace(HZ_IN_TEXT, (_all, number: string) => {
+    const x = Number(number);
+    if (!Number.isFinite(x)) return _all;
+    const [mantissa = ''] = number.toLowerCase().split('e');
+    const written = number.includes('e') || mantissa.includes('.') ? mantissa : mantissa.replace(/0+$/, '');
+    const digits = Math.max(1, written.replace(/^[0.]+/, '').replace('.', '').length);
+    return formatHz(x, { digits });
+  });
+}
+
+/**
+ * Axis ticks at round values, 1, 2 or 5 × 10ⁿ apart (common practice for chart scales), about
+ * `count` intervals over [lo, hi]; every tick is the decimal value itself, not a sum of floats.
+ */
+export function roundTicks(lo: number, hi: number, count = 6): number[] {
+  if (!Number.isFinite(lo) || !Number.isFinite(hi)) return [];
+  const span = hi - lo || Math.abs(hi) || 1;
+  const raw = span / Math.max(1, count);
+  const power = Math.floor(Math.log10(raw));
+  const unit = Number(`1e${power}`);
+  const factor = [1, 2, 5, 10].find((m) => m * unit >= raw * (1 - 1e-12)) ?? 10;
+  const step = factor * unit;
+  const place = factor === 10 ? power + 1 : power;
+  const first = Math.ceil(lo / step - 1e-9);
+  const last = Math.floor(hi / step + 1e-9);
+  const out: number[] = [];
+  for (let i = first; i <= last && out.length < 1000; i++) out.push(Number(decimal(i * step, -place)) || 0);
+  return out;
+}
+
+/** Labels for ticks from roundTicks: all with the decimals of the step ("0.5", "1.0", "1.5"). */
+export function tickLabels(ticks: readonly number[], style: NumberStyle = {}): string[] {
+  const step = ticks.length > 1 ? Math.abs((ticks[1] as number) - (ticks[0] as number)) : 1;
+  const decimals = Math.max(0, -exponentOf(step));
+  return ticks.map((t) => decimal(t, decimals, style));
+}
