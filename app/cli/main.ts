@@ -7,6 +7,7 @@ import path from 'node:path';
 import { parseArgs, type ParseArgsConfig } from 'node:util';
 import { LabError } from '../api/errors';
 import { encodeJson } from '../api/json';
+import { decimal, machineValues } from '../model/quantity-format';
 import { openApi, type OpenedLab } from '../api/open';
 import { systemClock, fixedClock } from '../api/service';
 import { StoreError } from '../../db/store';
@@ -109,7 +110,10 @@ export async function runCli(argv: string[], io: CliIo): Promise<number> {
     const dbFile = values.db
       ? path.resolve(io.cwd, values.db)
       : labFilePath(io.env, process.platform, homedir());
-    const print = (value: unknown, text: () => string) => io.out(json ? encodeJson(value, 2) : text());
+    // JSON numbers in SI units at 15 significant digits: no float noise, nothing measured lost
+    // (docs/exchange.md, "Numbers in --json output").
+    const print = (value: unknown, text: () => string) =>
+      io.out(json ? encodeJson(machineValues(value), 2) : text());
     const open = () => (opened = openApi(dbFile, { clock: io.clock, actor: io.env.USER ?? 'cli' }));
     const arg = (name: string) => {
       const v = rest[0];
@@ -166,7 +170,7 @@ export async function runCli(argv: string[], io: CliIo): Promise<number> {
                 c.performer,
                 verdictWord(c.asFoundVerdict),
                 verdictWord(c.asLeftVerdict),
-                c.worstUsedFraction === null ? '-' : `${(c.worstUsedFraction * 100).toFixed(0)} % of tol.`,
+                c.worstUsedFraction === null ? '-' : `${decimal(c.worstUsedFraction * 100, 0)} % of tol.`,
               ]),
               [0, 1, 6],
             ),
@@ -210,10 +214,10 @@ export async function runCli(argv: string[], io: CliIo): Promise<number> {
         const r = await lab.api.airRefractivity(input as never);
         print(r, () =>
           [
-            `refractivity N      ${r.refractivityN.toFixed(2)}  (ITU-R P.453)`,
-            `refractive index n  ${r.refractiveIndex.toFixed(8)}`,
-            `water vapour e      ${r.waterVapourHpa.toFixed(2)} hPa`,
-            `resonance shift     ${fmtPpm(r.shiftPpm)} against reference air (20 degC, 1013.25 hPa, 50 %RH; N = ${r.referenceN.toFixed(2)})`,
+            `refractivity N      ${decimal(r.refractivityN, 2)}  (ITU-R P.453)`,
+            `refractive index n  ${decimal(r.refractiveIndex, 8)}`,
+            `water vapour e      ${decimal(r.waterVapourHpa, 2)} hPa`,
+            `resonance shift     ${fmtPpm(r.shiftPpm)} against reference air (20 °C, 1013.25 hPa, 50 %RH; N = ${decimal(r.referenceN, 2)})`,
           ].join('\n'),
         );
         return 0;

@@ -168,16 +168,17 @@ export function plain(x: number, digits = 12, style: NumberStyle = {}): string {
 }
 
 /**
- * A machine value without float noise: 12 significant digits (far finer than any measurement
- * here, coarser than the noise of float arithmetic). What `--json` prints (docs/exchange.md).
+ * A machine value without float noise: 15 significant digits, the most that every decimal
+ * number keeps through a double (DBL_DIG of IEEE 754 binary64, ISO C 5.2.4.2.2), so nothing
+ * measured is lost and 0.1 + 0.2 is 0.3 again. What `--json` prints (docs/exchange.md).
  */
-export function machineNumber(x: number, digits = 12): number {
+export function machineNumber(x: number, digits = 15): number {
   if (!Number.isFinite(x) || x === 0) return x;
   return Number(x.toPrecision(digits));
 }
 
 /** Every number in a JSON-like value rounded by machineNumber; the shape is kept. */
-export function machineValues<T>(value: T, digits = 12): T {
+export function machineValues<T>(value: T, digits = 15): T {
   if (typeof value === 'number') return machineNumber(value, digits) as T;
   if (Array.isArray(value)) return value.map((v: unknown) => machineValues(v, digits)) as T;
   if (value !== null && typeof value === 'object') {

@@ -144,10 +144,11 @@ describe('one wording for the probability of conformity (JCGM 106:2012 p_c)', ()
   });
 });
 
-describe('machine values for --json: SI units, 12 significant digits (docs/exchange.md)', () => {
+describe('machine values for --json: SI units, 15 significant digits (DBL_DIG; docs/exchange.md)', () => {
   it('drops float noise and keeps the shape', () => {
     expect(machineNumber(0.1 + 0.2)).toBe(0.3);
-    expect(machineNumber(1.000267281452345)).toBe(1.00026728145);
+    expect(machineNumber(1 / 3)).toBe(0.333333333333333);
+    expect(machineNumber(1.0002672814523)).toBe(1.0002672814523);
     expect(machineNumber(9.300012345e9)).toBe(9300012345);
     expect(machineValues({ a: [0.30000000000000004, 'x'], b: null, c: { d: 965.9499999999999 } })).toEqual({
       a: [0.3, 'x'],
