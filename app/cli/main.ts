@@ -7,6 +7,7 @@ import path from 'node:path';
 import { parseArgs, type ParseArgsConfig } from 'node:util';
 import { LabError } from '../api/errors';
 import { encodeJson } from '../api/json';
+import { messageForPeople } from '../model/field-labels';
 import { decimal, machineValues } from '../model/quantity-format';
 import { openApi, type OpenedLab } from '../api/open';
 import { systemClock, fixedClock } from '../api/service';
@@ -282,8 +283,9 @@ function report(e: unknown, io: CliIo, json: boolean): number {
   if (e instanceof LabError) {
     if (json) io.err(encodeJson({ error: { code: e.code, message: e.message, issues: e.issues } }, 2));
     else {
-      io.err(`dipledger: ${e.message}`);
-      for (const i of e.issues.slice(1)) io.err(`  ${i.message}`);
+      // Fields named as the forms name them; --json keeps the machine path in each issue.
+      io.err(`dipledger: ${messageForPeople(e.message, e.issues[0]?.field)}`);
+      for (const i of e.issues.slice(1)) io.err(`  ${messageForPeople(i.message, i.field)}`);
       if (e.code === 'invalid-input') io.err('nothing was written.');
     }
     return e.code === 'internal' ? 3 : 2;
