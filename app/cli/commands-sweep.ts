@@ -9,6 +9,7 @@ import type { DipFit } from '../engine/resonance';
 import { formatFrequency } from '../engine';
 import type { CommandGroup } from './command';
 import { UsageError, fmt, numberOption, table } from './format';
+import { decimal, significant, plain } from '../model/quantity-format';
 
 const LEVELS = ['db', 'linear', 'volts', 'ri'] as const;
 const UNITS = ['Hz', 'kHz', 'MHz', 'GHz'] as const;
@@ -62,13 +63,13 @@ function dipRows(fits: { role: string; fit: DipFit }[]): string {
       role,
       formatFrequency(d.f0Hz, 10),
       formatFrequency(d.f0UncertaintyHz, 3),
-      d.loadedQ.toFixed(0),
-      d.loadedQUncertainty.toPrecision(2),
-      `${d.depthDb.toFixed(2)} dB`,
+      decimal(d.loadedQ, 0),
+      significant(d.loadedQUncertainty, 2),
+      `${decimal(d.depthDb, 2)} dB`,
       formatFrequency(d.halfDepthBandwidthHz, 4),
       formatFrequency(d.twoToneResolutionHz, 4),
-      d.unloadedQ === null ? '-' : d.unloadedQ.toPrecision(4),
-      d.externalQ === null ? '-' : d.externalQ.toPrecision(4),
+      d.unloadedQ === null ? '-' : significant(d.unloadedQ, 4),
+      d.externalQ === null ? '-' : significant(d.externalQ, 4),
     ]),
     [3, 4, 5],
   );
@@ -178,15 +179,15 @@ export const sweepCommands: CommandGroup = {
             : 'the chart stored with the meter';
         const lines = [
           `dial chart of ${r.assetId}: ${words[f.model.kind]}`,
-          `from ${r.pointCount} points of ${from}; residuals RMS ${f.rmsResidualPpm.toFixed(1)} ppm, largest ${f.maxResidualPpm.toFixed(1)} ppm (limit ${r.acceptPpm.toFixed(0)} ppm)`,
+          `from ${r.pointCount} points of ${from}; residuals RMS ${decimal(f.rmsResidualPpm, 1)} ppm, largest ${decimal(f.maxResidualPpm, 1)} ppm (limit ${decimal(r.acceptPpm, 0)} ppm)`,
           '',
           table(
             ['model', 'accepted', 'RMS / ppm', 'max / ppm', 'why'],
             f.candidates.map((c) => [
               c.model,
               c.accepted ? 'yes' : 'no',
-              c.rmsResidualPpm === null ? '-' : c.rmsResidualPpm.toFixed(1),
-              c.maxResidualPpm === null ? '-' : c.maxResidualPpm.toFixed(1),
+              c.rmsResidualPpm === null ? '-' : decimal(c.rmsResidualPpm, 1),
+              c.maxResidualPpm === null ? '-' : decimal(c.maxResidualPpm, 1),
               c.reason,
             ]),
             [2, 3],
@@ -194,17 +195,17 @@ export const sweepCommands: CommandGroup = {
           '',
           table(
             ['divisions', 'frequency'],
-            r.table.map((row) => [String(row.divisions), formatFrequency(row.frequencyHz, 7)]),
+            r.table.map((row) => [plain(row.divisions), formatFrequency(row.frequencyHz, 7)]),
             [0, 1],
           ),
           '',
           table(
             ['point div', 'measured', 'chart', 'residual'],
             f.residuals.map((x) => [
-              String(x.divisions),
+              plain(x.divisions),
               formatFrequency(x.frequencyHz, 8),
               formatFrequency(x.fittedHz, 8),
-              `${x.residualPpm.toFixed(1)} ppm`,
+              `${decimal(x.residualPpm, 1)} ppm`,
             ]),
             [0, 3],
           ),
@@ -231,8 +232,8 @@ export const sweepCommands: CommandGroup = {
                 s.phase,
                 String(s.dialSetting),
                 formatFrequency(s.f0Hz, 9),
-                s.loadedQ.toFixed(0),
-                `${s.depthDb.toFixed(2)} dB`,
+                decimal(s.loadedQ, 0),
+                `${decimal(s.depthDb, 2)} dB`,
                 s.spuriousHz.length ? s.spuriousHz.map((h) => formatFrequency(h, 6)).join(', ') : '-',
               ]),
               [0, 2, 6, 7],

@@ -7,6 +7,8 @@ import path from 'node:path';
 import { parseArgs, type ParseArgsConfig } from 'node:util';
 import { LabError } from '../api/errors';
 import { encodeJson } from '../model/json';
+import { messageForPeople } from '../model/field-labels';
+import { decimal, machineValues } from '../model/quantity-format';
 import { openApi, type OpenedLab } from '../api/open';
 import { systemClock, fixedClock } from '../api/service';
 import { StoreError } from '../../db/store';
@@ -116,7 +118,10 @@ export async function runCli(argv: string[], io: CliIo): Promise<number> {
     const dbFile = values.db
       ? path.resolve(io.cwd, values.db)
       : labFilePath(io.env, process.platform, homedir());
-    const print = (value: unknown, text: () => string) => io.out(json ? encodeJson(value, 2) : text());
+    // JSON numbers in SI units at 15 significant digits: no float noise, nothing measured lost
+    // (docs/exchange.md, "Numbers in --json output").
+    const print = (value: unknown, text: () => string) =>
+      io.out(json ? encodeJson(machineValues(value), 2) : text());
     const open = () => (opened = openApi(dbFile, { clock: io.clock, actor: io.env.USER ?? 'cli' }));
     const arg = (name: string) => {
       const v = rest[0];
@@ -173,7 +178,7 @@ export async function runCli(argv: string[], io: CliIo): Promise<number> {
                 c.performer,
                 verdictWord(c.asFoundVerdict),
                 verdictWord(c.asLeftVerdict),
-                c.worstUsedFraction === null ? '-' : `${(c.worstUsedFraction * 100).toFixed(0)} % of tol.`,
+                c.worstUsedFraction === null ? '-' : `${decimal(c.worstUsedFraction * 100, 0)} % of tol.`,
               ]),
               [0, 1, 6],
             ),
@@ -217,10 +222,10 @@ export async function runCli(argv: string[], io: CliIo): Promise<number> {
         const r = await lab.api.airRefractivity(input as never);
         print(r, () =>
           [
-            `refractivity N      ${r.refractivityN.toFixed(2)}  (ITU-R P.453)`,
-            `refractive index n  ${r.refractiveIndex.toFixed(8)}`,
-            `water vapour e      ${r.waterVapourHpa.toFixed(2)} hPa`,
-            `resonance shift     ${fmtPpm(r.shiftPpm)} against reference air (20 degC, 1013.25 hPa, 50 %RH; N = ${r.referenceN.toFixed(2)})`,
+            `refractivity N      ${decimal(r.refractivityN, 2)}  (ITU-R P.453)`,
+            `refractive index n  ${decimal(r.refractiveIndex, 8)}`,
+            `water vapour e      ${decimal(r.waterVapourHpa, 2)} hPa`,
+            `resonance shift     ${fmtPpm(r.shiftPpm)} against reference air (20 °C, 1013.25 hPa, 50 %RH; N = ${decimal(r.referenceN, 2)})`,
           ].join('\n'),
         );
         return 0;
@@ -285,8 +290,9 @@ function report(e: unknown, io: CliIo, json: boolean): number {
   if (e instanceof LabError) {
     if (json) io.err(encodeJson({ error: { code: e.code, message: e.message, issues: e.issues } }, 2));
     else {
-      io.err(`dipledger: ${e.message}`);
-      for (const i of e.issues.slice(1)) io.err(`  ${i.message}`);
+      // Fields named as the forms name them; --json keeps the machine path in each issue.
+      io.err(`dipledger: ${messageForPeople(e.message, e.issues[0]?.field)}`);
+      for (const i of e.issues.slice(1)) io.err(`  ${messageForPeople(i.message, i.field)}`);
       if (e.code === 'invalid-input') io.err('nothing was written.');
     }
     return e.code === 'internal' ? 3 : 2;
