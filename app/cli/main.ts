@@ -18,6 +18,7 @@ import { historyCommands } from './commands-history';
 import { documentCommands } from './commands-documents';
 import { recordsCommands } from './commands-records';
 import { resolveBudgetSweepFile, resolveSweepFiles, sweepCommands } from './commands-sweep';
+import packageJson from '../../package.json' with { type: 'json' };
 import {
   UsageError,
   band,
@@ -50,11 +51,22 @@ const CORE_OPTIONS: NonNullable<ParseArgsConfig['options']> = {
   port: { type: 'string' },
   'require-pass': { type: 'boolean', default: false },
   help: { type: 'boolean', short: 'h', default: false },
+  version: { type: 'boolean', default: false },
 };
+
+/** The commands of the switch in runCli; the groups' commands are the keys of their handlers. */
+const CORE_COMMANDS = ['init', 'refs', 'due', 'show', 'record', 'budget', 'air', 'import', 'export', 'serve'];
+
+/** Every command `dipledger` answers. */
+export function commandNames(): string[] {
+  return [...CORE_COMMANDS, ...GROUPS.flatMap((g) => Object.keys(g.commands))];
+}
 
 const CORE_USAGE = `dipledger: calibration records for cavity frequency meters
 
 usage: dipledger [--db FILE] [--json] COMMAND [ARGS]
+       dipledger COMMAND --help          what one command does
+       dipledger --version
 
   init [--sample] [--name NAME]      create a lab file, optionally with the demo lab
   refs                               the register: every meter, band, state, due date
@@ -78,6 +90,32 @@ export function usage(): string {
   return CORE_USAGE.replace('%GROUPS%', GROUPS.map((g) => g.usage).join(''));
 }
 
+const GLOBAL_OPTIONS_HELP = `  --db FILE   the lab file (default: $DIPLEDGER_DB or the user's data folder)
+  --json      machine-readable output in SI units (Hz, ppm, degC, hPa)
+Exit codes: 0 ok, 1 not a pass where --require-pass asks, 2 bad input (nothing written).`;
+
+/** The usage entry of one command (its line in the usage text and the lines continuing it),
+ * or undefined for a command that has none. */
+export function commandHelp(command: string): string | undefined {
+  const lines = usage().split('\n');
+  const start = lines.findIndex(
+    (l) => /^ {2}\S/.test(l) && l.trim().split(/\s/)[0]!.split('|').includes(command),
+  );
+  if (start < 0) return undefined;
+  let end = start + 1;
+  while (end < lines.length && /^ {6,}\S/.test(lines[end]!)) end++;
+  // "  synopsis   description" then description lines indented to the description column.
+  const [synopsis, ...first] = lines[start]!.trim().split(/ {2,}/);
+  const description = [first.join(' '), ...lines.slice(start + 1, end).map((l) => l.trim())].filter((l) => l);
+  return [
+    `usage: dipledger [--db FILE] [--json] ${synopsis}`,
+    '',
+    ...description.map((l) => `  ${l}`),
+    '',
+    GLOBAL_OPTIONS_HELP,
+  ].join('\n');
+}
+
 /** Runs one command line; returns the exit code. Never throws. */
 export async function runCli(argv: string[], io: CliIo): Promise<number> {
   let opened: OpenedLab | undefined;
@@ -99,12 +137,23 @@ export async function runCli(argv: string[], io: CliIo): Promise<number> {
       port?: string;
       'require-pass': boolean;
       help: boolean;
+      version: boolean;
     };
     json = values.json;
     const [command, ...rest] = parsed.positionals;
+    if (values.version) {
+      io.out(`dipledger ${packageJson.version}`);
+      return 0;
+    }
+    if (values.help && command) {
+      const help = commandHelp(command);
+      if (help === undefined) throw new UsageError(`unknown command "${command}"`);
+      io.out(help);
+      return 0;
+    }
     if (values.help || !command) {
       io.out(usage());
-      return command || values.help ? 0 : 2;
+      return values.help ? 0 : 2;
     }
     const dbFile = values.db
       ? path.resolve(io.cwd, values.db)
