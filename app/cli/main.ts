@@ -1,7 +1,7 @@
 // The `dipledger` command: a thin shell over the LabApi. Parses arguments, calls one
 // operation, prints a table or JSON (SI units). Exit codes: 0 ok, 1 a verdict that is not a
 // pass where --require-pass asks, 2 bad input (nothing written), 3 an internal fault.
-import { readFileSync, writeFileSync } from 'node:fs';
+import { existsSync, readFileSync, writeFileSync } from 'node:fs';
 import { homedir } from 'node:os';
 import path from 'node:path';
 import { parseArgs, type ParseArgsConfig } from 'node:util';
@@ -298,6 +298,7 @@ export async function runCli(argv: string[], io: CliIo): Promise<number> {
           path.dirname(new URL(import.meta.url).pathname),
           '../../renderer/dist',
         );
+        await ensureRendererBuilt(staticDir, io);
         const server = await startServer({ api: lab.api, port, staticDir });
         io.out(`Dipledger: ${server.launchUrl}  (Ctrl+C to stop)`);
         opened = undefined; // keep the lab open while serving
@@ -314,6 +315,25 @@ export async function runCli(argv: string[], io: CliIo): Promise<number> {
   } finally {
     opened?.close();
   }
+}
+
+/** The window's files are made by `npm run build:renderer` (vite); `npm start` builds them, a
+ * fresh install has none. Build them here on first use, or say exactly what to run. */
+async function ensureRendererBuilt(staticDir: string, io: CliIo): Promise<void> {
+  if (existsSync(path.join(staticDir, 'index.html'))) return;
+  io.err('dipledger: the window is not built yet; building it once (npm run build:renderer)...');
+  const root = path.resolve(staticDir, '../..');
+  try {
+    const { build } = await import('vite');
+    await build({ configFile: path.join(root, 'vite.config.ts'), logLevel: 'warn' });
+  } catch (e) {
+    throw new UsageError(
+      `the window could not be built (${e instanceof Error ? e.message.split('\n')[0] : String(e)}); ` +
+        `run "npm run build:renderer" in ${root}, then "dipledger serve" again`,
+    );
+  }
+  if (!existsSync(path.join(staticDir, 'index.html')))
+    throw new UsageError(`the window was not built; run "npm run build:renderer" in ${root}`);
 }
 
 function report(e: unknown, io: CliIo, json: boolean): number {
