@@ -14,7 +14,7 @@ import {
 } from '../../app/engine/intervals';
 import { tQuantile } from '../../app/engine/distributions';
 
-const DATA = path.resolve(import.meta.dirname, '../../../shared/data');
+const DATA = path.resolve(import.meta.dirname, '../data');
 
 function relErr(a: number, b: number): number {
   return Math.abs(a - b) / Math.abs(b);
@@ -41,7 +41,7 @@ describe('straight-line fit: NIST StRD linear regression dataset Norris (certifi
   });
 
   it('reproduces B1, B0, their standard deviations and the residual SD to at least 9 significant digits', () => {
-    // Certified values, NIST StRD "Norris" (file header in ../shared/data/nist-strd/Norris.txt).
+    // Certified values, NIST StRD "Norris" (file header in test/data/nist-strd/Norris.txt).
     expect(relErr(fit.slope, 1.00211681802045)).toBeLessThan(1e-9);
     expect(relErr(fit.intercept, -0.262323073774029)).toBeLessThan(1e-9);
     expect(relErr(fit.uSlope, 0.429796848199937e-3)).toBeLessThan(1e-9);
@@ -94,7 +94,7 @@ describe('prediction interval: NIST/SEMATECH e-Handbook 4.5.1.2 (single new obse
 });
 
 describe('attributes method: NCSL International RP-1 table D-1 data, exponential reliability model', () => {
-  // Data: ../shared/data/ncsli-rp1/table-d1.txt (a transcription from a secondary source, as the
+  // Data: test/data/ncsli-rp1/table-d1.txt (a transcription from a secondary source, as the
   // file says). Observed in-tolerance counts are n x R rounded to whole calibrations.
   const rows = readFileSync(path.join(DATA, 'ncsli-rp1/table-d1.txt'), 'utf8')
     .split('\n')
