@@ -3,8 +3,8 @@
 // LabApi; the record command uses resolveSweepFiles to read trace files a document names.
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
-import { openApi } from '../api/open';
 import { LabError } from '../api/errors';
+import { fitTraceOf } from '../api/ops/sweep';
 import type { DipFit } from '../engine/resonance';
 import { formatFrequency } from '../engine';
 import type { CommandGroup } from './command';
@@ -113,52 +113,47 @@ export const sweepCommands: CommandGroup = {
         false,
       );
       // A fit needs no lab file: it is computed on its own, nothing is stored.
-      const lab = openApi(':memory:', { clock: ctx.io.clock });
-      try {
-        const r = await lab.api.fitTrace({
-          text,
-          name: path.basename(file),
-          level: level as (typeof LEVELS)[number] | undefined,
-          frequencyUnit: unit as (typeof UNITS)[number] | undefined,
-          detectorSign: sign as 1 | -1 | undefined,
-          detectorOffsetV: offset,
-          method: ctx.values.scalar ? 'scalar' : 'auto',
-          model: model as (typeof MODELS)[number] | undefined,
-        });
-        // The plot is for drawing; the command line prints the fit and the thinned trace stays out.
-        const printed: Omit<typeof r, 'plot'> & { plot?: unknown } = { ...r };
-        delete printed.plot;
-        ctx.print(printed, () => {
-          const m = r.report.main;
-          const lines = [
-            `${path.basename(file)}: ${r.description}; ${m.method === 'complex-circle' ? 'complex fit (NPL MAT 58)' : 'scalar Lorentzian fit'}`,
-            '',
-            dipRows([
-              { role: 'main', fit: m },
-              ...r.report.spurious.map((s, i) => ({ role: `spurious ${i + 1}`, fit: s })),
-            ]),
-            '',
-            `baseline ${fmt(m.baselineAtF0)} at f0, residual RMS ${fmt(m.residualRms)}; ${m.pointsPerLinewidth} points across the half-depth width, ${m.pointsUsed} fitted`,
-            'FWHD: full width at half depth (f0 / QL); two tones: smallest spacing seen as two dips.',
-          ];
-          const choice = r.report.model;
-          if (choice) lines.push(`model: ${choice.used} (${choice.reason})`);
-          const judged = r.report.judgement;
-          if (judged)
-            lines.push(
-              `residuals against the baseline noise: reduced chi-square ${judged.reducedChiSquare.toPrecision(3)}`,
-            );
-          if (m.electricalDelayS !== undefined)
-            lines.push(
-              `electrical delay ${fmt(m.electricalDelayS * 1e9)} ns (u ${fmt((m.electricalDelayUncertaintyS ?? 0) * 1e9)} ns)`,
-            );
-          for (const w of r.warnings) lines.push(`WARNING: ${w}`);
-          for (const n of r.report.notes) lines.push(`note: ${n}`);
-          return lines.join('\n');
-        });
-      } finally {
-        lab.close();
-      }
+      const r = fitTraceOf({
+        text,
+        name: path.basename(file),
+        level: level as (typeof LEVELS)[number] | undefined,
+        frequencyUnit: unit as (typeof UNITS)[number] | undefined,
+        detectorSign: sign as 1 | -1 | undefined,
+        detectorOffsetV: offset,
+        method: ctx.values.scalar ? 'scalar' : 'auto',
+        model: model as (typeof MODELS)[number] | undefined,
+      });
+      // The plot is for drawing; the command line prints the fit and the thinned trace stays out.
+      const printed: Omit<typeof r, 'plot'> & { plot?: unknown } = { ...r };
+      delete printed.plot;
+      ctx.print(printed, () => {
+        const m = r.report.main;
+        const lines = [
+          `${path.basename(file)}: ${r.description}; ${m.method === 'complex-circle' ? 'complex fit (NPL MAT 58)' : 'scalar Lorentzian fit'}`,
+          '',
+          dipRows([
+            { role: 'main', fit: m },
+            ...r.report.spurious.map((s, i) => ({ role: `spurious ${i + 1}`, fit: s })),
+          ]),
+          '',
+          `baseline ${fmt(m.baselineAtF0)} at f0, residual RMS ${fmt(m.residualRms)}; ${m.pointsPerLinewidth} points across the half-depth width, ${m.pointsUsed} fitted`,
+          'FWHD: full width at half depth (f0 / QL); two tones: smallest spacing seen as two dips.',
+        ];
+        const choice = r.report.model;
+        if (choice) lines.push(`model: ${choice.used} (${choice.reason})`);
+        const judged = r.report.judgement;
+        if (judged)
+          lines.push(
+            `residuals against the baseline noise: reduced chi-square ${judged.reducedChiSquare.toPrecision(3)}`,
+          );
+        if (m.electricalDelayS !== undefined)
+          lines.push(
+            `electrical delay ${fmt(m.electricalDelayS * 1e9)} ns (u ${fmt((m.electricalDelayUncertaintyS ?? 0) * 1e9)} ns)`,
+          );
+        for (const w of r.warnings) lines.push(`WARNING: ${w}`);
+        for (const n of r.report.notes) lines.push(`note: ${n}`);
+        return lines.join('\n');
+      });
       return 0;
     },
 
