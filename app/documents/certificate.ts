@@ -18,7 +18,7 @@ import {
   dialText,
   fixed,
   ghz,
-  ghzDecimals,
+  ghzDecimalsFor,
   khzSigned,
   methodText,
   num,
@@ -26,9 +26,11 @@ import {
   ruleText,
   fingerprintText,
   signed,
+  tolerancePpmOfReading,
   verdictText,
   when,
 } from './words';
+import { significant } from '../model/quantity-format';
 
 export interface RenderedDocument {
   pdf: Buffer;
@@ -144,9 +146,9 @@ function resultsTable(page: Page, points: CheckPointRecord[], decimals: number):
       ghz(p.result.correctedHz, decimals),
       khzSigned(p.result.errorHz, 1),
       signed(p.result.errorPpm, 1),
-      fixed(p.result.expandedPpm, 1),
+      significant(p.result.expandedPpm, 2),
       fixed(p.result.budget.coverageFactor, 2),
-      fixed((p.result.decision.toleranceHz / p.referenceHz) * 1e6, 0),
+      fixed(tolerancePpmOfReading(p.result.decision.toleranceHz, p.result.correctedHz), 0),
       verdictText(p.result.decision.verdict),
     ]),
     { keepWithHeader: 40 },
@@ -168,7 +170,12 @@ export function renderCertificate(data: CheckDocumentData, pades?: PadesOptions)
   const found = check.points.filter((p) => p.phase === 'as-found');
   const left = check.points.filter((p) => p.phase === 'as-left');
   const rule = check.points[0]?.result.decision.rule ?? lab.decisionRule;
-  const decimals = ghzDecimals(meter.dialKind === 'direct' ? meter.resolution / 10 : 1e3);
+  // One decimal place for the frequency columns of both tables: the dial's, or the finer place
+  // of the smallest U (GUM 7.2.6), so a correction significant against U shows.
+  const decimals = ghzDecimalsFor(
+    meter,
+    check.points.map((p) => p.result.budget.expandedHz),
+  );
 
   // Title block (7.8.2.1 a, b, d, j).
   page.font('bold', 20);
