@@ -3,7 +3,9 @@
 // signatures of people on the record are separate (Ed25519 over the record, see verify.ts).
 import { pdfkitAddPlaceholder } from '@signpdf/placeholder-pdfkit';
 import { P12Signer } from '@signpdf/signer-p12';
-import signpdf from '@signpdf/signpdf';
+// A named import: the package is CommonJS, and under Node a default import gives its whole
+// exports object (whose `default` is the instance), not the instance.
+import { SignPdf } from '@signpdf/signpdf';
 
 export interface PadesOptions {
   /** The lab's PKCS#12 (.p12/.pfx) bytes and its passphrase. */
@@ -38,5 +40,5 @@ export function addSignaturePlaceholder(doc: PDFKit.PDFDocument, o: PadesOptions
 /** Fills the placeholder with a CMS signature over the byte ranges. */
 export async function signWithP12(pdf: Buffer, o: PadesOptions): Promise<Buffer> {
   const signer = new P12Signer(o.p12, { passphrase: o.passphrase });
-  return signpdf.sign(pdf, signer, o.signingTime);
+  return new SignPdf().sign(pdf, signer, o.signingTime);
 }

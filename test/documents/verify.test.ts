@@ -5,7 +5,6 @@
 import { generateKeyPairSync, sign } from 'node:crypto';
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
-import forge from 'node-forge';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { IssuedDocumentFile } from '../../app/api/contract-documents';
 import { renderCertificate } from '../../app/documents/certificate';
@@ -17,6 +16,7 @@ import { verifyDocumentBytes } from '../../app/documents/verify';
 import { runCli, type CliIo } from '../../app/cli/main';
 import { clock } from '../fixtures/lab';
 import { ALBA, demoLab, HAS_POPPLER, run, writeTemp, type DemoLab } from './fixture';
+import { throwawayP12 } from './p12';
 
 let demo: DemoLab;
 let cert: IssuedDocumentFile;
@@ -243,30 +243,6 @@ describe('verify', () => {
     expect(o4.stderr.join('\n')).toMatch(/CHECK: "x7" is not a check number/);
   });
 });
-
-/** A throwaway self-signed certificate and key as PKCS#12, made with node-forge. */
-function throwawayP12(passphrase: string): Buffer {
-  forge.options.usePureJavaScript = true;
-  const keys = forge.pki.rsa.generateKeyPair({ bits: 2048, e: 0x10001 });
-  const c = forge.pki.createCertificate();
-  c.publicKey = keys.publicKey;
-  c.serialNumber = '01';
-  c.validity.notBefore = new Date('2026-01-01T00:00:00Z');
-  c.validity.notAfter = new Date('2036-01-01T00:00:00Z');
-  const attrs = [
-    { name: 'commonName', value: 'Kestrel Row test signer' },
-    { name: 'organizationName', value: 'Invented test laboratory' },
-  ];
-  c.setSubject(attrs);
-  c.setIssuer(attrs);
-  c.setExtensions([
-    { name: 'basicConstraints', cA: false },
-    { name: 'keyUsage', digitalSignature: true, nonRepudiation: true },
-  ]);
-  c.sign(keys.privateKey, forge.md.sha256.create());
-  const p12 = forge.pkcs12.toPkcs12Asn1(keys.privateKey, [c], passphrase, { algorithm: '3des' });
-  return Buffer.from(forge.asn1.toDer(p12).getBytes(), 'binary');
-}
 
 describe.skipIf(!HAS_POPPLER)('embedded PDF signature (PKCS#12)', () => {
   it('pdfsig reports it valid, and the lab still verifies the file', async () => {
