@@ -428,7 +428,7 @@ describe('verify checks the DCC against the signed record', () => {
     // The same record and identity, with a DCC whose error at the first point is 1 kHz off.
     const opened = openIssued(data, CERTIFICATE_TITLE, 'forged');
     opened.page.end('end');
-    const pdf = closeIssued(opened.page, opened, data, undefined, [forged]).pdf;
+    const pdf = closeIssued(opened.page, opened, data, [forged]).pdf;
     const r = verifyDocumentBytes(pdf);
     expect(r.ok).toBe(false);
     expect(failures(r)).toEqual([

@@ -4,7 +4,6 @@ import forge from 'node-forge';
 
 /** A throwaway self-signed certificate and key as PKCS#12, made with node-forge. */
 export function throwawayP12(passphrase: string): Buffer {
-  forge.options.usePureJavaScript = true;
   const keys = forge.pki.rsa.generateKeyPair({ bits: 2048, e: 0x10001 });
   const c = forge.pki.createCertificate();
   c.publicKey = keys.publicKey;
