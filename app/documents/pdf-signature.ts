@@ -66,8 +66,12 @@ export function checkPdfSignature(pdf: Buffer): PdfSignatureCheck {
       byteRange,
       problems: [...problems, 'the bytes the signature leaves out are not just its own value'],
     };
-  const dict = pdf.subarray(Math.max(0, b - 4096), b).toString('latin1');
-  const sub = /\/SubFilter\s*\/([A-Za-z0-9.]+)[^]*$/.exec(dict)?.[1];
+  // The signature dictionary around the value: from its object's start to its end.
+  const before = pdf.subarray(0, b).toString('latin1');
+  const objStart = Math.max(0, before.lastIndexOf(' obj'));
+  const objEnd = pdf.indexOf('endobj', c);
+  const dict = before.slice(objStart) + pdf.subarray(c, objEnd < 0 ? c : objEnd).toString('latin1');
+  const sub = /\/SubFilter\s*\/([A-Za-z0-9.]+)/.exec(dict)?.[1];
   if (sub !== SUB_FILTER)
     problems.push(`the signature's sub-filter is ${sub ?? 'missing'}, not ${SUB_FILTER} (PAdES baseline)`);
   const value = Buffer.from(hex.slice(1, -1), 'hex');

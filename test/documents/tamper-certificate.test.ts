@@ -63,8 +63,9 @@ function toUnicodeMaps(qdf: string): Map<string, string>[] {
     const map = new Map<string, string>();
     for (const r of (m[1] ?? '').matchAll(/<([0-9a-f]{4})>\s*<[0-9a-f]{4}>\s*\[([^\]]*)\]/gi)) {
       const start = parseInt(r[1] ?? '0', 16);
-      [...(r[2] ?? '').matchAll(/<([0-9a-f]+)>/gi)].forEach((u, i) => {
-        const text = Buffer.from(u[1] ?? '', 'hex')
+      // An entry may hold several characters (a ligature: <0066 0069>).
+      [...(r[2] ?? '').matchAll(/<([0-9a-f ]+)>/gi)].forEach((u, i) => {
+        const text = Buffer.from((u[1] ?? '').replace(/ /g, ''), 'hex')
           .swap16()
           .toString('utf16le');
         map.set(text, (start + i).toString(16).padStart(4, '0'));
@@ -74,20 +75,24 @@ function toUnicodeMaps(qdf: string): Map<string, string>[] {
   });
 }
 
-/** Changes a visible number in a page's content stream (qpdf uncompresses the file first). */
-function changeVisibleText(bytes: Buffer, from: string, to: string): Buffer {
+/** Changes the first digit of a visible number in a page's content stream to another digit
+ * the font's subset has (qpdf uncompresses the file first). */
+function changeVisibleText(bytes: Buffer, from: string): Buffer {
   const dir = demo.dir;
   const src = writeTemp(dir, 'visible-src.pdf', bytes);
   const qdfFile = path.join(dir, 'visible.qdf.pdf');
   expect(spawnSync('qpdf', ['--qdf', '--object-streams=disable', src, qdfFile]).status).not.toBe(2);
-  let qdf = readFileSync(qdfFile).toString('latin1');
+  const qdf = readFileSync(qdfFile).toString('latin1');
   for (const map of toUnicodeMaps(qdf)) {
     const enc = (s: string) => [...s].map((c) => map.get(c) ?? 'xxxx').join('');
     const a = enc(from);
-    const b = enc(to);
-    if (a.includes('xxxx') || b.includes('xxxx') || !qdf.includes(a)) continue;
-    qdf = qdf.replace(a, b);
-    return Buffer.from(qdf, 'latin1');
+    if (a.includes('xxxx') || !qdf.includes(a)) continue;
+    for (const d of '9876543210') {
+      const to = from.replace(/\d/, d);
+      const b = enc(to);
+      if (to === from || b.includes('xxxx')) continue;
+      return Buffer.from(qdf.replace(a, b), 'latin1');
+    }
   }
   throw new Error(`"${from}" is not in any content stream`);
 }
@@ -201,22 +206,22 @@ interface Case {
 const firstErrorText = () => {
   const p = recordOf(pdf).record.points[0];
   if (!p) throw new Error('no point');
-  return signed(p.result.errorPpm, 1);
+  // The digits only: a kerned TJ may put the sign in a string of its own.
+  return signed(p.result.errorPpm, 1).replace(/^[^0-9]+/, '');
 };
-const altered = (s: string) => s.replace(/\d/, (d) => (d === '9' ? '8' : '9'));
 
 const CASES: Case[] = [
   {
     name: 'visible error changed in the content stream',
-    make: () => fixQdf(changeVisibleText(pdf, firstErrorText(), altered(firstErrorText()))),
+    make: () => fixQdf(changeVisibleText(pdf, firstErrorText())),
     standalone: /PDF signature: .*|pages show the record: the content of page/,
     lab: /file unchanged: the file has been changed/,
     needsQpdf: true,
   },
   {
     name: 'visible error changed, then re-signed with a key of the forger',
-    make: () => resign(fixQdf(changeVisibleText(pdf, firstErrorText(), altered(firstErrorText())))),
-    standalone: /pages show the record: the content of page 1 differs from what the record draws/,
+    make: () => resign(fixQdf(changeVisibleText(pdf, firstErrorText()))),
+    standalone: /pages show the record: /,
     lab: /PDF signature is the lab's: .* has never signed documents with the certificate/,
     needsQpdf: true,
   },
