@@ -8,5 +8,6 @@ export default defineConfig({
     hookTimeout: 60000,
     pool: 'forks',
     setupFiles: ['test/setup.ts'],
+    globalSetup: ['test/global-build.ts'],
   },
 });

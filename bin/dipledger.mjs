@@ -1,8 +1,5 @@
 #!/usr/bin/env node
-// Entry point of the `dipledger` command: runs the TypeScript CLI through tsx.
-import { register } from 'tsx/esm/api';
-import { fileURLToPath } from 'node:url';
-
-register();
-const { runCli, processIo } = await import(fileURLToPath(new URL('../app/cli/main.ts', import.meta.url)));
+// Entry point of the `dipledger` command: runs the compiled CLI (dist/cli.mjs, made by
+// `npm run build`, which `npm install` runs through "prepare").
+const { runCli, processIo } = await import('../dist/cli.mjs');
 process.exitCode = await runCli(process.argv.slice(2), processIo());

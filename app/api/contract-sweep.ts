@@ -1,9 +1,9 @@
-// Sweeps and dials (issue 3): the resonance fit of a trace on its own, the swept points of a meter
+// Sweeps and dials: the resonance fit of a trace on its own, the swept points of a meter
 // over its history (resonance, Q, depth, spurious responses), and a divisions meter's dial chart
 // fitted from its check points with a physical cavity model.
 import type { DipPlot } from '../engine/dipplot';
 import type { ResonanceReport } from '../engine/resonance';
-import type { ChartTableRow, DialChartFit } from '../engine/dialchart';
+import type { ChartTableRow, DialChartFit } from '../engine/dial-chart';
 import type { SweepRecord, SweepSummary } from '../../db/queries/sweeps';
 import type { ChartQueryInput, FitTraceInput } from './schemas-sweep';
 

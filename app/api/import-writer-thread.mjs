@@ -1,6 +1,7 @@
-// Entry of the import's writer thread: a worker starts with no TypeScript loader (it does not
-// inherit one registered in its parent's code, as the desktop's main.cjs does), so it registers
-// tsx itself before loading the thread's TypeScript.
+// Entry of the import's writer thread when the service runs from its TypeScript sources (the
+// tests, through vitest): a worker inherits no loader, so it registers tsx (a development
+// dependency) itself. The shipped program starts dist/import-writer-thread.mjs instead, the
+// compiled thread beside the compiled service (scripts/build.mjs).
 import { register } from 'tsx/esm/api';
 
 register();

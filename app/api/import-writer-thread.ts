@@ -4,7 +4,7 @@
 // transaction, and is reported when the main thread asks to commit.
 import { parentPort, workerData } from 'node:worker_threads';
 import { openLabDb } from '../../db/store';
-import { writeCheckRows, type CheckWrite } from './check-write';
+import { writeCheckRows, type CheckWrite } from '../../db/queries/check-write';
 
 export type ToWriter =
   | { kind: 'begin' }

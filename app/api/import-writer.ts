@@ -9,7 +9,7 @@
 // import, or a thread that cannot start is written in the service's own transaction as before.
 import { Worker } from 'node:worker_threads';
 import type { LabDb } from '../../db/store';
-import type { CheckWrite } from './check-write';
+import type { CheckWrite } from '../../db/queries/check-write';
 import type { FromWriter, ToWriter } from './import-writer-thread';
 
 /** Checks sent to the thread per message: fewer messages, and still a steady flow. */
@@ -135,7 +135,8 @@ export function importWriterFor(db: LabDb): Promise<ImportWriter | undefined> {
   started = new Promise<WriterThread | undefined>((resolve) => {
     let worker: Worker;
     try {
-      // No loader flags inherited: the entry registers its own (see import-writer-thread.mjs).
+      // Beside this module: the compiled thread in dist/, or the sources' entry, which registers
+      // its own loader (see import-writer-thread.mjs). No loader flags inherited.
       worker = new Worker(new URL('./import-writer-thread.mjs', import.meta.url), {
         workerData: { file },
         execArgv: [],

@@ -1,4 +1,4 @@
-// Input shapes of the sweep method and the resonance fit (issue 3), validated with zod. A sweep is
+// Input shapes of the sweep method and the resonance fit, validated with zod. A sweep is
 // the text of a trace file (read by the client: the command line resolves `file`), or readings typed
 // at the bench, plus how to read the level.
 import { z } from 'zod';
@@ -13,6 +13,8 @@ export const TraceOptionsSchema = z.object({
   /** Detector volts: +1 rising with power, -1 negative-going. */
   detectorSign: z.union([z.literal(1), z.literal(-1)], 'expected 1 or -1').optional(),
   detectorOffsetV: finite('detector offset in V').optional(),
+  /** The resonance model: chosen from the data (default), the complex Q-circle, or the magnitude dip. */
+  model: z.enum(['auto', 'complex', 'magnitude'], 'expected "auto", "complex" or "magnitude"').optional(),
 });
 
 export const SweepInputSchema = TraceOptionsSchema.extend({
@@ -35,7 +37,7 @@ export type SweepInput = z.output<typeof SweepInputSchema>;
 
 /** `dipledger fit`: one trace file, or typed points, fitted on its own; nothing stored. */
 export const FitTraceSchema = SweepInputSchema.extend({
-  /** 'scalar' fits |S21|^2 of a complex trace with the scalar model (for comparison). */
+  /** 'scalar' fits |S21|^2 of a complex trace with the scalar model (the same as model "magnitude"). */
   method: z.enum(['auto', 'scalar'], 'expected "auto" or "scalar"').default('auto'),
 });
 export type FitTraceInput = z.input<typeof FitTraceSchema>;

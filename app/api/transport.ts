@@ -1,5 +1,6 @@
 // The wire between a LabApi and its thin shells (IPC, loopback HTTP): the result envelope,
 // the dispatcher that runs one named operation, and JSON that keeps non-finite numbers.
+import { decodeJson, encodeJson } from '../model/json';
 import { OPERATIONS } from './contract';
 import type { LabApi, OperationName } from './contract';
 import { LabError, fromWire, toWire } from './errors';
@@ -79,26 +80,9 @@ export function unwrap(envelope: unknown): unknown {
   throw new LabError('internal', 'the answer from the lab service was not understood');
 }
 
-// JSON turns Infinity and NaN into null, yet budgets carry Infinity degrees of freedom;
-// a tagged object keeps them across HTTP (IPC's structured clone keeps them anyway).
-const NONFINITE_TAG = '$nonfinite';
+/** The wire's JSON: the lab's one dialect (app/model/json.ts), so Infinity and NaN (budgets carry
+ * infinite degrees of freedom) cross HTTP; IPC's structured clone keeps them anyway. */
+export const encodeWire = (value: unknown): string => encodeJson(value);
 
-/** JSON.stringify that keeps Infinity, -Infinity and NaN. */
-export function encodeWire(value: unknown): string {
-  return JSON.stringify(value, (_key, v: unknown) =>
-    typeof v === 'number' && !Number.isFinite(v) ? { [NONFINITE_TAG]: String(v) } : v,
-  );
-}
-
-/** JSON.parse that restores what encodeWire tagged. Throws SyntaxError on bad JSON. */
-export function decodeWire(text: string): unknown {
-  return JSON.parse(text, (_key, v: unknown) => {
-    if (typeof v === 'object' && v !== null && !Array.isArray(v)) {
-      const keys = Object.keys(v);
-      const tag = (v as Record<string, unknown>)[NONFINITE_TAG];
-      if (keys.length === 1 && (tag === 'Infinity' || tag === '-Infinity' || tag === 'NaN'))
-        return Number(tag);
-    }
-    return v;
-  });
-}
+/** The value of a wire text, non-finite numbers back in number fields. Throws SyntaxError on bad JSON. */
+export const decodeWire = (text: string): unknown => decodeJson(text);

@@ -12,6 +12,7 @@ import { UsageError, fmt, numberOption, table } from './format';
 
 const LEVELS = ['db', 'linear', 'volts', 'ri'] as const;
 const UNITS = ['Hz', 'kHz', 'MHz', 'GHz'] as const;
+const MODELS = ['auto', 'complex', 'magnitude'] as const;
 
 function readText(file: string, cwd: string, field: string): string {
   try {
@@ -74,8 +75,11 @@ function dipRows(fits: { role: string; fit: DipFit }[]): string {
 }
 
 export const sweepCommands: CommandGroup = {
-  usage: `  fit FILE [--level db|linear|volts|ri] [--unit GHz] [--detector-sign -1] [--detector-offset V] [--scalar]
-                                     resonance fit of a sweep (.s2p, .s1p or delimited): every dip
+  usage: `  fit FILE [--level db|linear|volts|ri] [--unit GHz] [--detector-sign -1] [--detector-offset V]
+      [--model auto|complex|magnitude] [--scalar]
+                                     resonance fit of a sweep (.s2p, .s1p or delimited): every dip;
+                                     the model is chosen from the data unless asked (--scalar is
+                                     --model magnitude)
   chart REF [--step DIV]             a divisions meter's dial chart, fitted from its newest check
   sweeps REF                         a meter's swept points: resonance, Q, depth, spurious dips
 `,
@@ -85,6 +89,7 @@ export const sweepCommands: CommandGroup = {
     'detector-sign': { type: 'string' },
     'detector-offset': { type: 'string' },
     scalar: { type: 'boolean', default: false },
+    model: { type: 'string' },
     step: { type: 'string' },
   },
   commands: {
@@ -97,6 +102,9 @@ export const sweepCommands: CommandGroup = {
       const unit = ctx.values.unit as string | undefined;
       if (unit !== undefined && !(UNITS as readonly string[]).includes(unit))
         throw new UsageError(`--unit must be one of ${UNITS.join(', ')}`);
+      const model = ctx.values.model as string | undefined;
+      if (model !== undefined && !(MODELS as readonly string[]).includes(model))
+        throw new UsageError(`--model must be one of ${MODELS.join(', ')}`);
       const sign = numberOption('detector-sign', ctx.values['detector-sign'] as string | undefined, false);
       const offset = numberOption(
         'detector-offset',
@@ -114,6 +122,7 @@ export const sweepCommands: CommandGroup = {
           detectorSign: sign as 1 | -1 | undefined,
           detectorOffsetV: offset,
           method: ctx.values.scalar ? 'scalar' : 'auto',
+          model: model as (typeof MODELS)[number] | undefined,
         });
         // The plot is for drawing; the command line prints the fit and the thinned trace stays out.
         const printed: Omit<typeof r, 'plot'> & { plot?: unknown } = { ...r };
@@ -131,6 +140,18 @@ export const sweepCommands: CommandGroup = {
             `baseline ${fmt(m.baselineAtF0)} at f0, residual RMS ${fmt(m.residualRms)}; ${m.pointsPerLinewidth} points across the half-depth width, ${m.pointsUsed} fitted`,
             'FWHD: full width at half depth (f0 / QL); two tones: smallest spacing seen as two dips.',
           ];
+          const choice = r.report.model;
+          if (choice) lines.push(`model: ${choice.used} (${choice.reason})`);
+          const judged = r.report.judgement;
+          if (judged)
+            lines.push(
+              `residuals against the baseline noise: reduced chi-square ${judged.reducedChiSquare.toPrecision(3)}`,
+            );
+          if (m.electricalDelayS !== undefined)
+            lines.push(
+              `electrical delay ${fmt(m.electricalDelayS * 1e9)} ns (u ${fmt((m.electricalDelayUncertaintyS ?? 0) * 1e9)} ns)`,
+            );
+          for (const w of r.warnings) lines.push(`WARNING: ${w}`);
           for (const n of r.report.notes) lines.push(`note: ${n}`);
           return lines.join('\n');
         });

@@ -1,5 +1,5 @@
 // Electron main process: one window on the built renderer, the LabApi behind one IPC channel.
-// Receives the electron module from main.cjs; holds no domain logic.
+// Receives the electron module from the Electron entry (dist/desktop.cjs); holds no domain logic.
 import os from 'node:os';
 import path from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';

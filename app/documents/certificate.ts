@@ -4,7 +4,7 @@
 // interval unless the lab has agreed to print one) and 7.8.8 (a replacement names what it
 // replaces). The clause beside each heading is for the assessor; tests look for each element.
 import { formatFrequency } from '../engine';
-import type { CheckPointRecord } from '../api/contract';
+import type { CheckPointRecord } from '../model/records';
 import { drawErrorChart, tolerancePpm } from './chart';
 import type { CheckDocumentData } from './model';
 import { dccAttachment } from './dcc';

@@ -2,7 +2,7 @@
 // stated accuracy, the acceptance limits of the decision rule where they differ, and each
 // point's error with its expanded uncertainty U as a bar. Drawn with pdfkit vector graphics so
 // it stays sharp in print and adds no image to the archive.
-import type { CheckRecord, Meter } from '../api/contract';
+import type { CheckRecord, Meter } from '../model/records';
 import { ACCENT, INK, MUTED, RULE, type Page } from './pdf';
 
 export interface ChartBox {

@@ -2,7 +2,7 @@
 // reading with its direction, the corrections applied, each point's uncertainty budget
 // (JCGM 100:2008 layout), error, U, k, decision and verdict, and the signatures with their
 // meanings. It carries the same machine-readable record as the certificate.
-import type { CheckPointRecord } from '../api/contract';
+import type { CheckPointRecord } from '../model/records';
 import type { Contribution } from '../engine/model';
 import { closeIssued, identification, openIssued, type RenderedDocument } from './certificate';
 import type { CheckDocumentData } from './model';

@@ -1,7 +1,7 @@
 // What a document is built from: plain data only (the lab, the meter, the check as recorded,
 // the standards with their certificates, the signatures), so the documents depend on nothing
 // but these shapes and render the same record the same way years later.
-import type { CheckRecord, LabSettings, Meter, Standard, StandardCertificate } from '../api/contract';
+import type { CheckRecord, LabSettings, Meter, Standard, StandardCertificate } from '../model/records';
 
 export type DocumentKind = 'certificate' | 'check-sheet';
 

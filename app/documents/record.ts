@@ -2,8 +2,8 @@
 // exchange document ("dipledger.check/1", so `dipledger record` can read it back), the check as
 // recorded with every computed result, the signatures on it, and the document's identity.
 import { createHash } from 'node:crypto';
-import { decodeJson, encodeJson } from '../api/json';
-import type { CheckRecord } from '../api/contract';
+import { decodeJson, encodeJson } from '../model/json';
+import type { CheckRecord } from '../model/records';
 import type {
   CheckDocumentData,
   DocumentSignature,

@@ -10,7 +10,7 @@
 // - the PDF signature (pdf-signature.ts): one, valid, covering the whole file, and with the lab
 //   file, made with one of the lab's document-signing certificates;
 // - the pages show the record: drawn again from it, the file is the same (verify-render.ts).
-import type { CheckRecord } from '../api/contract';
+import type { CheckRecord } from '../model/records';
 import { INFO_KEYS } from './certificate';
 import { checkEmbeddedDcc } from './dcc-verify';
 import { checkPdfSignature } from './pdf-signature';

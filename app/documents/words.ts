@@ -3,7 +3,7 @@
 // can use the same wording.
 import { formatFrequency } from '../engine';
 import type { DecisionRule, Verdict } from '../engine/model';
-import type { Meter } from '../api/contract';
+import type { Meter } from '../model/records';
 import type { SignatureMeaning } from './model';
 
 export const VERDICT_TEXT: Record<Verdict, string> = {

@@ -1,8 +1,8 @@
 // Checks: an event per calibration, its numbered revisions, points and readings.
-import type { CheckRecord, CheckState, CheckSummary } from '../../app/api/contract';
+import type { CheckRecord, CheckState, CheckSummary } from '../../app/model/records';
 import type { Conditions, DecisionRule, PointResult, Reading, Verdict } from '../../app/engine/model';
-import { decodeJson, encodeJson } from '../../app/api/json';
-import { packPointResult } from '../../app/api/point-pack';
+import { decodeStoredJson as decodeJson, encodeJson } from '../codec/stored-json';
+import { packPointResult } from '../codec/point-pack';
 import type { LabDb } from '../store';
 import { cachedStatement } from '../statements';
 import { combinedHzCell, type CombinedHzCell } from './point-combined';

@@ -2,7 +2,7 @@
 // numbers of their stored point results that the analysis reads, and the lab-standard
 // certificates a check relied on.
 import type { Phase, PointResult, Verdict } from '../../app/engine/model';
-import { decodeJson } from '../../app/api/json';
+import { decodeStoredJson as decodeJson } from '../codec/stored-json';
 import type { Statement } from 'better-sqlite3';
 import type { LabDb } from '../store';
 import { cachedStatement } from '../statements';

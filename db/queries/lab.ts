@@ -1,5 +1,5 @@
 // Lab identity and settings: one row.
-import type { LabSettings } from '../../app/api/contract';
+import type { LabSettings } from '../../app/model/records';
 import type { DecisionRule } from '../../app/engine/model';
 import type { LabDb } from '../store';
 import { cachedStatement } from '../statements';

@@ -1,5 +1,5 @@
 // Meters, their dial charts and check plans, and the register's one-query summary.
-import type { Meter } from '../../app/api/contract';
+import type { Meter } from '../../app/model/records';
 import type { Verdict } from '../../app/engine/model';
 import type { LabDb } from '../store';
 import { cachedStatement } from '../statements';

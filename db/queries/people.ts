@@ -1,5 +1,5 @@
 // People who perform, review and administer checks.
-import type { Person } from '../../app/api/contract';
+import type { Person } from '../../app/model/records';
 import type { LabDb } from '../store';
 import { cachedStatement } from '../statements';
 

@@ -12,7 +12,7 @@
 // which holds COMBINED_HZ_SQL (db/queries/history.ts) for every point.
 // Either way a point reads back as the number that decoding its whole stored result gives: -0 as
 // 0 (JSON writes it "0"), a missing value as undefined (test/db/cheaper-writes-migration.test.ts).
-import { decodeJson, encodeJson } from '../../app/api/json';
+import { decodeStoredJson as decodeJson, encodeJson } from '../codec/stored-json';
 
 /** A cell of combined_hz, or the JSON text of combinedHz read out of the stored result. */
 export type CombinedHzCell = number | string | null;

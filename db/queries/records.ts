@@ -1,6 +1,6 @@
 // Signing keys, signatures, revisions and the audit trail as rows: what the records operations
 // and the integrity check read and write. Row <-> model conversion is explicit here.
-import type { Person } from '../../app/api/contract';
+import type { Person } from '../../app/model/records';
 import type {
   AuditEntryView,
   AuditQuery,
@@ -8,8 +8,8 @@ import type {
   RevisionSummary,
   SignatureMeaning,
   StandardUsed,
-} from '../../app/api/contract-records';
-import type { SealedKey } from '../../app/api/records-signing';
+} from '../../app/model/revisions';
+import type { SealedKey } from '../../app/signing/keys';
 import type { LabDb } from '../store';
 import { cachedStatement } from '../statements';
 

@@ -1,5 +1,5 @@
 // Lab standards (traceable sources and counters) and their certificate history.
-import type { StandardCertificate } from '../../app/api/contract';
+import type { StandardCertificate } from '../../app/model/records';
 import type { LabDb } from '../store';
 import { cachedStatement } from '../statements';
 

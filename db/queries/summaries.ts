@@ -4,7 +4,7 @@
 // columns, for one meter or the whole fleet in a single pass, and the summaries kept in the lab
 // file (0007).
 import Database, { type Statement } from 'better-sqlite3';
-import type { Meter } from '../../app/api/contract';
+import type { Meter } from '../../app/model/records';
 import type { LabDb } from '../store';
 import type { RegisterDbRow } from './meters';
 

@@ -2,7 +2,7 @@
 // resonance, one row per point measured by the sweep method. Traces are stored as float64 blobs
 // (exact, and a third of the size of JSON text for a 10,001-point trace).
 import type { ResonanceReport } from '../../app/engine/resonance';
-import { decodeJson, encodeJson } from '../../app/api/json';
+import { decodeStoredJson as decodeJson, encodeJson } from '../codec/stored-json';
 import type { LabDb } from '../store';
 
 export type SweepSourceKind = 'touchstone' | 'delimited' | 'typed';

@@ -2,16 +2,17 @@
 // a later view is one more route in routes.ts and one more case below.
 import { useEffect, useState } from 'react';
 import type { LabApi } from '../../app/api/contract';
-import { CheckPage } from './CheckPage';
-import { DocumentsPage } from './DocumentsPage';
-import { FitForUsePage } from './FitForUsePage';
-import { MeterPage } from './MeterPage';
-import { RecordCheckPage } from './RecordCheckPage';
-import { RegisterPage } from './RegisterPage';
-import { SettingsPage } from './SettingsPage';
-import { StandardsPage } from './StandardsPage';
-import { href, parseRoute, section } from './routes';
-import type { Route } from './routes';
+import { CheckPage } from './check/CheckPage';
+import { DocumentsPage } from './documents/DocumentsPage';
+import { FitForUsePage } from './use/FitForUsePage';
+import { MeterPage } from './meter/MeterPage';
+import { RecordCheckPage } from './record/RecordCheckPage';
+import { RegisterPage } from './register/RegisterPage';
+import { SettingsPage } from './settings/SettingsPage';
+import { StandardsPage } from './standards/StandardsPage';
+import { LabProvider } from './lab/LabContext';
+import { href, parseRoute, section } from './shared/routes';
+import type { Route } from './shared/routes';
 
 const TABS = [
   { key: 'register', label: 'Register', to: href.register() },
@@ -35,7 +36,7 @@ export function App({ api, win = window }: { api: LabApi; win?: Window }) {
   const current = section(route);
 
   return (
-    <>
+    <LabProvider api={api}>
       <nav className="topnav" aria-label="Views">
         <span className="brand">Dipledger</span>
         <ul>
@@ -48,36 +49,36 @@ export function App({ api, win = window }: { api: LabApi; win?: Window }) {
           ))}
         </ul>
       </nav>
-      <View api={api} route={route} />
-    </>
+      <View route={route} />
+    </LabProvider>
   );
 }
 
-function View({ api, route }: { api: LabApi; route: Route }) {
+function View({ route }: { route: Route }) {
   switch (route.view) {
     case 'register':
-      return <RegisterPage api={api} />;
+      return <RegisterPage />;
     case 'meter':
-      return <MeterPage key={route.assetId} api={api} assetId={route.assetId} />;
+      return <MeterPage key={route.assetId} assetId={route.assetId} />;
     case 'check':
-      return <CheckPage key={route.checkId} api={api} checkId={route.checkId} />;
+      return <CheckPage key={route.checkId} checkId={route.checkId} />;
     case 'record':
       return (
         <RecordCheckPage
           key={`${route.assetId ?? ''}/${route.draftId ?? ''}`}
-          api={api}
+
           assetId={route.assetId}
           draftId={route.draftId}
         />
       );
     case 'use':
-      return <FitForUsePage api={api} />;
+      return <FitForUsePage />;
     case 'standards':
-      return <StandardsPage api={api} />;
+      return <StandardsPage />;
     case 'documents':
-      return <DocumentsPage api={api} />;
+      return <DocumentsPage />;
     case 'settings':
-      return <SettingsPage api={api} />;
+      return <SettingsPage />;
     case 'missing':
       return (
         <div className="page">

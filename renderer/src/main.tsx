@@ -1,9 +1,11 @@
 // Renderer entry: mounts the app (navigation and views) on the lab client chosen for this window.
+import './base.css';
+import './shared/shared.css';
+import './shared/forms.css';
 import { StrictMode } from 'react';
 import { createRoot } from 'react-dom/client';
-import { labClient } from './api';
+import { labClient } from './lab/client';
 import { App } from './App';
-import './styles.css';
 
 const root = document.getElementById('root');
 if (!root) throw new Error('index.html has no #root element');

@@ -1,4 +1,4 @@
-// The per-meter summaries (app/api/summaries.ts, migration 0006) change no answer: on the demo lab,
+// The per-meter summaries (app/api/history/summaries.ts, migration 0006) change no answer: on the demo lab,
 // the register with flags, every meter's page (getMeter, getTrend), fit for use at every check
 // frequency, the fleet-wide fit for use and the coverage come out identical with summaries off
 // (computed fresh) and on (cold, then warm), and again after each kind of change a summary must
@@ -12,7 +12,7 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import type { LabApi } from '../../app/api/contract';
 import type { CheckDocumentInput } from '../../app/api/schemas';
 import { createLabService, fixedClock } from '../../app/api/service';
-import { setSummariesEnabled, summariesComputed } from '../../app/api/summaries';
+import { setSummariesEnabled, summariesComputed } from '../../app/api/history/summaries';
 import { openLabDb, type LabDb } from '../../db/store';
 import { loadBundle, readSampleBundle, type SampleBundle } from '../../sample-lab/load';
 import { clock } from '../fixtures/lab';

@@ -8,7 +8,7 @@ import { afterEach, describe, expect, it } from 'vitest';
 import type { LabApi } from '../../app/api/contract';
 import { LabError } from '../../app/api/errors';
 import { openApi } from '../../app/api/open';
-import { MAX_DRAFT_BYTES } from '../../app/api/ops-drafts';
+import { MAX_DRAFT_BYTES } from '../../app/api/ops/drafts';
 import { clock, goodCheck, seed, seededLab } from '../fixtures/lab';
 
 async function refusal(p: Promise<unknown>): Promise<LabError> {

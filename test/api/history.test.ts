@@ -7,7 +7,7 @@ import path from 'node:path';
 import { beforeAll, afterAll, describe, expect, it } from 'vitest';
 import { openApi, type OpenedLab } from '../../app/api/open';
 import { LabError } from '../../app/api/errors';
-import { decodeJson } from '../../app/api/json';
+import { decodeStoredJson as decodeJson } from '../../db/codec/stored-json';
 import type { TrendReport, UseReport, CoverageReport } from '../../app/api/contract-history';
 import { runCli, type CliIo } from '../../app/cli/main';
 import { createLabFile, loadBundle, readSampleBundle } from '../../sample-lab/load';

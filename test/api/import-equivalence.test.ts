@@ -10,7 +10,7 @@
 import { beforeAll, describe, expect, it } from 'vitest';
 import type { LabApi } from '../../app/api/contract';
 import { LabError } from '../../app/api/errors';
-import { PACK_MARK } from '../../app/api/point-pack';
+import { PACK_MARK } from '../../db/codec/point-pack';
 import { createLabService } from '../../app/api/service';
 import { openLabDb, type LabDb } from '../../db/store';
 import { loadBundle, readSampleBundle, type SampleBundle } from '../../sample-lab/load';

@@ -4,7 +4,7 @@
 // what earlier versions wrote: checked here against that replacer form on generated values.
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { decodeJson, encodeJson } from '../../app/api/json';
+import { decodeStoredJson as decodeJson, encodeJson } from '../../db/codec/stored-json';
 
 /** The earlier encoder, kept as the reference. */
 function replacerForm(value: unknown, space?: number): string {

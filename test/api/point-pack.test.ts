@@ -8,13 +8,13 @@
 import fc from 'fast-check';
 import { beforeAll, describe, expect, it, vi } from 'vitest';
 import type { LabApi } from '../../app/api/contract';
-import { decodeJson, encodeJson } from '../../app/api/json';
-import { canonicalBytes } from '../../app/api/records-signing';
+import { decodeStoredJson as decodeJson, encodeJson } from '../../db/codec/stored-json';
+import { canonicalBytes } from '../../app/signing/keys';
 import { createLabService } from '../../app/api/service';
 import { openLabDb, type LabDb } from '../../db/store';
 import { loadBundle, readSampleBundle, type SampleBundle } from '../../sample-lab/load';
 import { clock } from '../fixtures/lab';
-import type * as PointPack from '../../app/api/point-pack';
+import type * as PointPack from '../../db/codec/point-pack';
 import type { PointResult } from '../../app/engine/model';
 
 // The writer's input, seen as the store hands it over; `writes` makes it write as older code did:
@@ -24,7 +24,7 @@ const spy = vi.hoisted(() => {
   const state: { writes: Writes; seen: unknown[] } = { writes: 'format-2', seen: [] };
   return state;
 });
-vi.mock('../../app/api/point-pack', async (importOriginal) => {
+vi.mock('../../db/codec/point-pack', async (importOriginal) => {
   const mod = await importOriginal<typeof PointPack>();
   return {
     ...mod,
@@ -36,7 +36,7 @@ vi.mock('../../app/api/point-pack', async (importOriginal) => {
   };
 });
 const { packPointResult, packPointResult1, PACK_MARK, PACK_MARK_1 } =
-  await vi.importActual<typeof PointPack>('../../app/api/point-pack');
+  await vi.importActual<typeof PointPack>('../../db/codec/point-pack');
 
 /** What the store writes for a result now, and what format-1 code wrote. */
 const stored = (v: unknown): string => packPointResult(v) ?? encodeJson(v);

@@ -8,10 +8,10 @@
 // test/api/point-pack.test.ts.
 import fc from 'fast-check';
 import { afterAll, describe, expect, it } from 'vitest';
-import { decodeJson, encodeJson } from '../../app/api/json';
-import { PACK_MARK, packPointResult } from '../../app/api/point-pack';
-import { KEY_LISTS_2, PACK_MARK_2, unpackPointResult2 } from '../../app/api/point-pack2';
-import { canonicalBytes } from '../../app/api/records-signing';
+import { decodeStoredJson as decodeJson, encodeJson } from '../../db/codec/stored-json';
+import { PACK_MARK, packPointResult } from '../../db/codec/point-pack';
+import { KEY_LISTS_2, PACK_MARK_2, unpackPointResult2 } from '../../db/codec/point-pack2';
+import { canonicalBytes } from '../../app/signing/keys';
 import { openLabDb } from '../../db/store';
 
 /** What the store writes for a value. */

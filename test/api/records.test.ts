@@ -14,7 +14,7 @@ import {
   signBytes,
   unsealPrivateKey,
   verifyBytes,
-} from '../../app/api/records-signing';
+} from '../../app/signing/keys';
 import { diffValues } from '../../app/api/records-diff';
 import { goodCheck, seededLab } from '../fixtures/lab';
 

@@ -1,4 +1,4 @@
-// Summaries kept in the lab file (migration 0007, app/api/summaries.ts): a new process reads them
+// Summaries kept in the lab file (migration 0007, app/api/history/summaries.ts): a new process reads them
 // instead of recomputing every meter, and gets the answers a fresh computation gives; a write by
 // another process makes exactly that meter's summary stale; summaries made by another version,
 // or a dropped table, only cost a recomputation; and a read-only file or one whose write lock is
@@ -19,7 +19,7 @@ import {
   SUMMARIES_MADE_BY,
   SUMMARY_FORMAT,
   summariesComputed,
-} from '../../app/api/summaries';
+} from '../../app/api/history/summaries';
 import { openLabDb, type LabDb } from '../../db/store';
 import { loadBundle, readSampleBundle, type SampleBundle } from '../../sample-lab/load';
 import { clock } from '../fixtures/lab';
@@ -103,7 +103,7 @@ describe('summaries kept in the lab file', () => {
       .all();
     const sha256 = createHash('sha256').update(JSON.stringify(rows)).digest('hex');
     // On a mismatch: if the analysis behind the flags or the interval evidence changed, raise
-    // SUMMARY_FORMAT (app/api/summaries.ts) and put the new hash here, both in the same change
+    // SUMMARY_FORMAT (app/api/history/summaries.ts) and put the new hash here, both in the same change
     // (a regenerated demo lab changes the hash too; raising the format then costs only a
     // recomputation in files that hold summaries).
     expect({ format: SUMMARY_FORMAT, sha256 }).toEqual({

@@ -61,8 +61,10 @@ export async function figures(): Promise<BenchFigure[]> {
   const win = installDom();
   const React = await import('react');
   const { createRoot } = await import('react-dom/client');
-  const { RegisterPage } = await import('../../renderer/src/RegisterPage');
-  const { STATE_LABEL, VERDICT_LABEL, formatBand, formatDays } = await import('../../renderer/src/format');
+  const { RegisterPage } = await import('../../renderer/src/register/RegisterPage');
+  const { LabProvider } = await import('../../renderer/src/lab/LabContext');
+  const { STATE_LABEL, VERDICT_LABEL, formatBand, formatDays } =
+    await import('../../renderer/src/shared/format');
   const { fleetApi, fleetRows } = await import('../e2e/fixtures/registerFleet');
   const h = React.createElement;
   type Row = ReturnType<typeof fleetRows>[number];
@@ -147,7 +149,7 @@ export async function figures(): Promise<BenchFigure[]> {
     const api = fleetApi(METERS);
     // Ready: rows shown, flags and the coverage strip loaded.
     const f = await firstRender(
-      h(RegisterPage, { api }),
+      h(LabProvider, { api, children: h(RegisterPage) }),
       () =>
         mountedRows() > 0 &&
         document.querySelector('[data-testid="coverage-gaps"]') !== null &&

@@ -6,7 +6,7 @@ import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { runCli, type CliIo } from '../../app/cli/main';
-import { decodeJson } from '../../app/api/json';
+import { decodeStoredJson as decodeJson } from '../../db/codec/stored-json';
 import { clock, goodCheck, seededLab } from '../fixtures/lab';
 
 function io(cwd: string): CliIo & { stdout: string[]; stderr: string[] } {

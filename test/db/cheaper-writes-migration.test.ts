@@ -8,9 +8,9 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import type { LabApi } from '../../app/api/contract';
-import { decodeJson, encodeJson } from '../../app/api/json';
+import { decodeStoredJson as decodeJson, encodeJson } from '../../db/codec/stored-json';
 import { createLabService } from '../../app/api/service';
-import { forgetSummaries, setSummariesEnabled } from '../../app/api/summaries';
+import { forgetSummaries, setSummariesEnabled } from '../../app/api/history/summaries';
 import type { PointResult } from '../../app/engine/model';
 import { insertCheck, type NewCheckRevision } from '../../db/queries/checks';
 import { COMBINED_HZ_SQL, HISTORY_SQL, meterHistory, pointResults } from '../../db/queries/history';

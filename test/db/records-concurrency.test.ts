@@ -7,7 +7,7 @@ import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { openApi } from '../../app/api/open';
-import { verifyIntegrity } from '../../app/api/ops-records';
+import { integrityReport as verifyIntegrity } from '../../app/api/ops/audit';
 import { openLabDb } from '../../db/store';
 import { clock, seed } from '../fixtures/lab';
 

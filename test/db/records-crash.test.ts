@@ -12,7 +12,7 @@ import { describe, expect, it } from 'vitest';
 import { openApi } from '../../app/api/open';
 import { CSV_COLUMNS } from '../../app/api/service';
 import { openLabDb } from '../../db/store';
-import { verifyIntegrity } from '../../app/api/ops-records';
+import { integrityReport as verifyIntegrity } from '../../app/api/ops/audit';
 import { clock, seed } from '../fixtures/lab';
 
 const CHILD = path.join(path.dirname(new URL(import.meta.url).pathname), 'records-child.ts');

@@ -4,7 +4,7 @@
 // the answers need.
 import { describe, expect, it } from 'vitest';
 import { createLabService } from '../../app/api/service';
-import { forgetSummaries, setSummariesEnabled } from '../../app/api/summaries';
+import { forgetSummaries, setSummariesEnabled } from '../../app/api/history/summaries';
 import { COMBINED_HZ_SQL, HISTORY_SQL } from '../../db/queries/history';
 import { openLabDb, schemaVersion, type LabDb } from '../../db/store';
 import { clock, goodCheck, seed } from '../fixtures/lab';

@@ -1,4 +1,4 @@
-// The Electron entry (main.cjs -> main.ts) under plain Node with a fake electron module:
+// The Electron entry (dist/desktop.cjs -> the compiled main process) under plain Node with a fake electron module:
 // a secure window on the built page, and the lab reachable only from that page over IPC.
 import { execFile } from 'node:child_process';
 import { mkdtemp, rm } from 'node:fs/promises';

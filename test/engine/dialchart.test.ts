@@ -7,7 +7,7 @@ import {
   fitDialChart,
   modelDivisions,
   modelFrequencyHz,
-} from '../../app/engine/dialchart';
+} from '../../app/engine/dial-chart';
 import { SPEED_OF_LIGHT_M_PER_S } from '../../app/engine/waveguide';
 
 /** Capacitively loaded coaxial cavity: the fundamental root of Z0 tan(2 pi f l / c) = 1 / (2 pi f C). */

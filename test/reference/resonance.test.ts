@@ -6,7 +6,7 @@ import { describe, expect, it } from 'vitest';
 import { fitResonances, ResonanceError } from '../../app/engine/resonance';
 import { syntheticSweep } from '../fixtures/sweeps';
 
-const figure27 = readFileSync(new URL('../../../shared/data/npl-mat58/Figure27.txt', import.meta.url), 'utf8')
+const figure27 = readFileSync(new URL('../data/npl-mat58/Figure27.txt', import.meta.url), 'utf8')
   .trim()
   .split('\n')
   .map((l) => l.trim().split(/\s+/).map(Number) as [number, number, number]);

@@ -7,7 +7,7 @@ import {
   rectangularTe10CutoffHz,
   standardGuideCutoffHz,
 } from '../../app/engine/waveguide';
-import { fitDialChart, modelFrequencyHz } from '../../app/engine/dialchart';
+import { fitDialChart, modelFrequencyHz } from '../../app/engine/dial-chart';
 
 describe('TE10 cut-off of standard rectangular waveguides (EIA RS-261-B, f_c = c / 2a)', () => {
   it('WR-90 (a = 22.86 mm) cuts off at 6.557 GHz', () => {

@@ -1,0 +1,24 @@
+// A refusal as every form shows it: what was not done and that nothing changed, then each problem
+// the service named (field, value, what was expected), or its message when it named none.
+import type { FieldIssue } from '../../../app/api/errors';
+
+export function Problems({
+  verb,
+  state,
+}: {
+  verb: string;
+  state: { message: string; issues: FieldIssue[] };
+}) {
+  return (
+    <div className="problems" role="alert">
+      <p>
+        <strong>✗ {verb}; nothing was changed.</strong> {state.issues.length === 0 && state.message}
+      </p>
+      <ul>
+        {state.issues.map((i, k) => (
+          <li key={k}>{i.message}</li>
+        ))}
+      </ul>
+    </div>
+  );
+}
