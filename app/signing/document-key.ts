@@ -52,7 +52,7 @@ export async function makeDocumentKey(labName: string, nowIso: string): Promise<
   const alg = { name: 'ECDSA', namedCurve: 'P-256', hash: 'SHA-256' };
   // Node's WebCrypto; its declared type differs from the DOM's in ways that do not matter here.
   const crypto = webcrypto as unknown as Crypto;
-  const keys = (await crypto.subtle.generateKey(alg, true, ['sign', 'verify'])) as CryptoKeyPair;
+  const keys = await crypto.subtle.generateKey(alg, true, ['sign', 'verify']);
   const notBefore = new Date(nowIso);
   const notAfter = new Date(notBefore);
   notAfter.setUTCFullYear(notAfter.getUTCFullYear() + YEARS_VALID);
