@@ -9,7 +9,8 @@ import { drawErrorChart, tolerancePpm } from './chart';
 import type { CheckDocumentData } from './model';
 import { dccAttachment } from './dcc';
 import { CONTENT_WIDTH, MUTED, PAGE, Page, type Attachment } from './pdf';
-import { addSignaturePlaceholder, signWithP12, type PadesOptions } from './pades';
+import type { DocumentSigner } from '../signing/document-key';
+import { addSignaturePlaceholder, signPdf } from './pades';
 import { buildRecord, encodeRecord, recordFileName, RECORD_MEDIA_TYPE, sha256Hex } from './record';
 import {
   MEANING_TEXT,
@@ -84,13 +85,12 @@ export function openIssued(
   return { page, record, recordName, recordSha256 };
 }
 
-/** Attaches the record and writes the furniture; with `pades`, also the signature placeholder
- * (fill it with signRendered). */
+/** Attaches the record, writes the furniture and the PDF signature's placeholder (fill it with
+ * signRendered). */
 export function closeIssued(
   page: Page,
   opened: { record: Buffer; recordName: string; recordSha256: string },
   data: CheckDocumentData,
-  pades?: PadesOptions,
   more: Attachment[] = [],
 ): RenderedDocument {
   const pdf = page.finish(
@@ -105,7 +105,7 @@ export function closeIssued(
       },
       ...more,
     ],
-    pades ? (doc) => addSignaturePlaceholder(doc, pades) : undefined,
+    (doc) => addSignaturePlaceholder(doc, data),
   );
   return {
     pdf,
@@ -155,14 +155,13 @@ function resultsTable(page: Page, points: CheckPointRecord[], decimals: number):
   );
 }
 
-/** Fills the signature placeholder of a document rendered with `pades` (asynchronous: the
- * signing library is). */
-export async function signRendered(r: RenderedDocument, pades: PadesOptions): Promise<RenderedDocument> {
-  const pdf = await signWithP12(r.pdf, pades);
+/** Fills the signature placeholder of a rendered document (asynchronous: the signing library is). */
+export async function signRendered(r: RenderedDocument, signer: DocumentSigner): Promise<RenderedDocument> {
+  const pdf = await signPdf(r.pdf, signer);
   return { ...r, pdf, sha256: sha256Hex(pdf) };
 }
 
-export function renderCertificate(data: CheckDocumentData, pades?: PadesOptions): RenderedDocument {
+export function renderCertificate(data: CheckDocumentData): RenderedDocument {
   const { lab, meter, check, issue } = data;
   const opened = openIssued(data, CERTIFICATE_TITLE, `Calibration of ${meter.assetId} on ${check.date}`);
   const page = opened.page;
@@ -364,5 +363,5 @@ export function renderCertificate(data: CheckDocumentData, pades?: PadesOptions)
   );
   page.end(`End of certificate ${issue.number} revision ${issue.revision}`);
   // The hybrid certificate: the DCC travels beside the record, as data a receiving lab reads.
-  return closeIssued(page, opened, data, pades, [dccAttachment(data)]);
+  return closeIssued(page, opened, data, [dccAttachment(data)]);
 }

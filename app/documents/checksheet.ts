@@ -14,7 +14,6 @@ import {
 import { closeIssued, identification, openIssued, type RenderedDocument } from './certificate';
 import type { CheckDocumentData } from './model';
 import { MUTED, PAGE } from './pdf';
-import type { PadesOptions } from './pades';
 import {
   MEANING_TEXT,
   accuracyText,
@@ -120,7 +119,7 @@ function pointBlock(
 
 type CheckSheetPage = ReturnType<typeof openIssued>['page'];
 
-export function renderCheckSheet(data: CheckDocumentData, pades?: PadesOptions): RenderedDocument {
+export function renderCheckSheet(data: CheckDocumentData): RenderedDocument {
   const { lab, meter, check, issue } = data;
   const opened = openIssued(
     data,
@@ -249,5 +248,5 @@ export function renderCheckSheet(data: CheckDocumentData, pades?: PadesOptions):
     { size: 8, color: MUTED },
   );
   page.end(`End of check-sheet ${issue.number} revision ${issue.revision}`);
-  return closeIssued(page, opened, data, pades);
+  return closeIssued(page, opened, data);
 }
