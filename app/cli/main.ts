@@ -17,6 +17,7 @@ import type { CliIo, CommandContext, CommandGroup } from './command';
 import { historyCommands } from './commands-history';
 import { documentCommands } from './commands-documents';
 import { dccCommands } from './commands-dcc';
+import { impactCommands } from './commands-impact';
 import { recordsCommands } from './commands-records';
 import { resolveBudgetSweepFile, resolveSweepFiles, sweepCommands } from './commands-sweep';
 import {
@@ -42,6 +43,7 @@ const GROUPS: CommandGroup[] = [
   documentCommands,
   sweepCommands,
   dccCommands,
+  impactCommands,
 ];
 
 const CORE_OPTIONS: NonNullable<ParseArgsConfig['options']> = {
