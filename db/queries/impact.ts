@@ -31,9 +31,9 @@ export interface ImpactCheckRow {
 }
 
 /** Checks at their effective revision (newest signed, else newest draft; the register's rule)
- * whose record names the standard and whose date lies in [since, until], oldest first, with every
- * point. Read as arrays (raw mode): this runs over thousands of checks. */
-const IMPACT_SQL = `WITH named AS (
+ * whose record names the standard and whose date lies in [since, until], oldest first. The points
+ * are read per revision below, in the order of their index, so no sort ever holds their results. */
+const CHECKS_SQL = `WITH named AS (
     SELECT DISTINCT x.check_id FROM check_revision_standard s JOIN check_revision x ON x.id = s.revision_id
     WHERE s.standard_id = @standardId
   ), eff AS (
@@ -41,18 +41,21 @@ const IMPACT_SQL = `WITH named AS (
            ROW_NUMBER() OVER (PARTITION BY cr.check_id ORDER BY (cr.state <> 'draft') DESC, cr.revision DESC) AS rn
     FROM check_revision cr JOIN named n ON n.check_id = cr.check_id
   )
-  SELECT e.check_id, e.revision, ce.meter_id, m.asset_id, e.performed_on, e.as_found_verdict, e.as_left_verdict,
-         cp.seq, cp.phase, cp.reference_hz, cp.standard_id, cp.error_hz, cp.error_ppm, cp.expanded_hz, cp.verdict,
-         CASE WHEN cp.standard_id = @standardId THEN cp.result_json END
+  SELECT e.id, e.check_id, e.revision, ce.meter_id, m.asset_id, e.performed_on, e.as_found_verdict, e.as_left_verdict
   FROM eff e
   JOIN check_revision_standard crs ON crs.revision_id = e.id AND crs.standard_id = @standardId
   JOIN check_event ce ON ce.id = e.check_id
   JOIN meter m ON m.id = ce.meter_id
-  LEFT JOIN check_point cp ON cp.revision_id = e.id
   WHERE e.rn = 1 AND e.performed_on >= @since AND e.performed_on <= @until
-  ORDER BY e.performed_on, e.check_id, cp.seq`;
+  ORDER BY e.performed_on, e.check_id`;
 
-type Row = [
+/** A revision's points in order; the stored result only where the point used the standard. */
+const POINTS_SQL = `SELECT seq, phase, reference_hz, standard_id, error_hz, error_ppm, expanded_hz, verdict,
+    CASE WHEN standard_id = ? THEN result_json END
+  FROM check_point WHERE revision_id = ? ORDER BY seq`;
+
+type CheckRow = [
+  revisionId: number,
   checkId: number,
   revision: number,
   meterId: number,
@@ -60,18 +63,21 @@ type Row = [
   date: string,
   asFound: Verdict | null,
   asLeft: Verdict | null,
-  seq: number | null,
-  phase: Phase | null,
-  referenceHz: number | null,
-  standardId: number | null,
-  errorHz: number | null,
-  errorPpm: number | null,
-  expandedHz: number | null,
-  verdict: Verdict | null,
+];
+
+type PointRow = [
+  seq: number,
+  phase: Phase,
+  referenceHz: number,
+  standardId: number,
+  errorHz: number,
+  errorPpm: number,
+  expandedHz: number,
+  verdict: Verdict,
   resultText: string | null,
 ];
 
-const STATEMENTS = new WeakMap<LabDb, Statement>();
+const STATEMENTS = new WeakMap<LabDb, { checks: Statement; points: Statement }>();
 
 export function checksNamingStandard(
   db: LabDb,
@@ -79,41 +85,32 @@ export function checksNamingStandard(
   since: string,
   until: string,
 ): ImpactCheckRow[] {
-  let read = STATEMENTS.get(db);
-  if (!read) {
-    read = db.prepare(IMPACT_SQL).raw(true);
-    STATEMENTS.set(db, read);
+  let st = STATEMENTS.get(db);
+  if (!st) {
+    st = { checks: db.prepare(CHECKS_SQL).raw(true), points: db.prepare(POINTS_SQL).raw(true) };
+    STATEMENTS.set(db, st);
   }
-  const out: ImpactCheckRow[] = [];
-  for (const r of read.all({ standardId, since, until }) as Row[]) {
-    let c = out[out.length - 1];
-    if (!c || c.checkId !== r[0]) {
-      c = {
-        checkId: r[0],
-        revision: r[1],
-        meterId: r[2],
-        assetId: r[3],
-        date: r[4],
-        asFoundVerdict: r[5],
-        asLeftVerdict: r[6],
-        points: [],
-      };
-      out.push(c);
-    }
-    if (r[7] === null) continue;
-    c.points.push({
-      seq: r[7],
-      phase: r[8] as Phase,
-      referenceHz: r[9] as number,
-      standardId: r[10] as number,
-      errorHz: r[11] as number,
-      errorPpm: r[12] as number,
-      expandedHz: r[13] as number,
-      verdict: r[14] as Verdict,
-      result: r[15] === null ? null : (decodeJson(r[15]) as PointResult),
-    });
-  }
-  return out;
+  const { points } = st;
+  return (st.checks.all({ standardId, since, until }) as CheckRow[]).map((r) => ({
+    checkId: r[1],
+    revision: r[2],
+    meterId: r[3],
+    assetId: r[4],
+    date: r[5],
+    asFoundVerdict: r[6],
+    asLeftVerdict: r[7],
+    points: (points.all(standardId, r[0]) as PointRow[]).map((p) => ({
+      seq: p[0],
+      phase: p[1],
+      referenceHz: p[2],
+      standardId: p[3],
+      errorHz: p[4],
+      errorPpm: p[5],
+      expandedHz: p[6],
+      verdict: p[7],
+      result: p[8] === null ? null : (decodeJson(p[8]) as PointResult),
+    })),
+  }));
 }
 
 export interface MeterUseRow {
