@@ -20,6 +20,7 @@ const FILES: ReadonlyArray<readonly [number, string]> = [
   [8, '0008_audit_index.sql'],
   [9, '0009_cheaper_writes.sql'],
   [10, '0010_document_keys.sql'],
+  [11, '0011_meter_uses.sql'],
 ];
 
 function load(version: number, file: string): Migration {

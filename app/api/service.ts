@@ -18,6 +18,7 @@ import { dccOps } from './ops/dcc';
 import { documentOps } from './ops/documents';
 import { draftOps } from './ops/drafts';
 import { historyOps } from './ops/history';
+import { impactOps } from './ops/impact';
 import { labOps } from './ops/lab';
 import { meterOps } from './ops/meters';
 import { registerOps } from './ops/register';
@@ -47,6 +48,7 @@ const OPS = {
   ...sweepOps,
   ...documentOps,
   ...dccOps,
+  ...impactOps,
 } satisfies ContextOps<LabApi>;
 
 export interface ServiceOptions {

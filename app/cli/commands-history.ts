@@ -141,6 +141,17 @@ export const historyCommands: CommandGroup = {
       const r = await ctx
         .open()
         .api.fitForUse(ref === undefined ? { frequency: at } : { assetId: ref, frequency: at });
+      const log = ctx.values.log;
+      if (log !== undefined) {
+        if (ref === undefined)
+          throw new UsageError('use --log needs the meter: use REF --at FREQ --log TEXT');
+        const logged = await ctx.open().api.logUse({ meter: ref, at, purpose: String(log) });
+        ctx.print(
+          { ...r, logged },
+          () => `${useText(r)}\nlogged use ${logged.id} by ${logged.usedBy} at ${logged.usedAt}`,
+        );
+        return r.answers.some((a) => a.fit) ? 0 : 1;
+      }
       ctx.print(r, () => useText(r));
       return r.answers.some((a) => a.fit) ? 0 : 1;
     },

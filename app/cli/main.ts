@@ -19,6 +19,7 @@ import type { CliIo, CommandContext, CommandGroup } from './command';
 import { historyCommands } from './commands-history';
 import { documentCommands } from './commands-documents';
 import { dccCommands } from './commands-dcc';
+import { impactCommands } from './commands-impact';
 import { recordsCommands } from './commands-records';
 import { resolveBudgetSweepFile, resolveSweepFiles, sweepCommands } from './commands-sweep';
 import packageJson from '../../package.json' with { type: 'json' };
@@ -45,6 +46,7 @@ const GROUPS: CommandGroup[] = [
   documentCommands,
   sweepCommands,
   dccCommands,
+  impactCommands,
 ];
 
 const CORE_OPTIONS: NonNullable<ParseArgsConfig['options']> = {

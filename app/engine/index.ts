@@ -67,3 +67,11 @@ export {
   type DecisionInputs,
 } from './conformity';
 export { evaluatePoint } from './evaluate';
+export {
+  deviationAtHz,
+  deviationLine,
+  rejudgePoint,
+  type ReferenceDeviation,
+  type RejudgedPoint,
+  type StoredPointResult,
+} from './impact';

@@ -95,7 +95,9 @@ export interface Contribution {
     | 'expansion'
     | 'pressure'
     | 'humidity'
-    | 'fit';
+    | 'fit'
+    /** The reference's deviation found later (an as-found deviation of the standard). */
+    | 'reference-deviation';
   label: string;
   type: 'A' | 'B';
   distribution: Distribution;

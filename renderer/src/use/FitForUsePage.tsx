@@ -7,6 +7,7 @@ import { formatDays, formatHz, formatPpm } from '../shared/format';
 import { href } from '../shared/routes';
 import { messageOf } from '../shared/useLoad';
 import { useLab } from '../lab/LabContext';
+import { LogUse } from './LogUse';
 import './use.css';
 
 type Ask =
@@ -219,6 +220,7 @@ function Detail({ a }: { a: UseAnswer }) {
           </table>
         </>
       )}
+      {a.fit && <LogUse assetId={a.assetId} frequencyHz={a.frequencyHz} />}
       <p className="hint">
         The answer supports, and never replaces, your lab’s quality system. Do not exceed the meter’s maximum
         input power (see its page).
