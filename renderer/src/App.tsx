@@ -11,6 +11,7 @@ import { RegisterPage } from './register/RegisterPage';
 import { SettingsPage } from './settings/SettingsPage';
 import { StandardsPage } from './standards/StandardsPage';
 import { LabProvider } from './lab/LabContext';
+import { AnnounceProvider, focusQuietly, useFocusOnViewChange, viewHeading } from './shared/a11y';
 import { href, parseRoute, section } from './shared/routes';
 import type { Route } from './shared/routes';
 
@@ -34,9 +35,22 @@ export function App({ api, win = window }: { api: LabApi; win?: Window }) {
     return () => win.removeEventListener('hashchange', onHash);
   }, [win]);
   const current = section(route);
+  useFocusOnViewChange(JSON.stringify(route), win.document);
 
   return (
     <LabProvider api={api}>
+      <AnnounceProvider>
+      <a
+        className="skip-link"
+        href="#main"
+        onClick={(e) => {
+          // The address is the router's: skipping moves focus only.
+          e.preventDefault();
+          focusQuietly(viewHeading(win.document) ?? win.document.querySelector<HTMLElement>('main'));
+        }}
+      >
+        Skip to main content
+      </a>
       <nav className="topnav" aria-label="Views">
         <span className="brand">Dipledger</span>
         <ul>
@@ -49,7 +63,10 @@ export function App({ api, win = window }: { api: LabApi; win?: Window }) {
           ))}
         </ul>
       </nav>
-      <View route={route} />
+      <main id="main">
+        <View route={route} />
+      </main>
+      </AnnounceProvider>
     </LabProvider>
   );
 }

@@ -24,6 +24,7 @@ import { href } from '../shared/routes';
 import { WorksheetButton } from './WorksheetButton';
 import { messageOf, useLoad } from '../shared/useLoad';
 import { useLab } from '../lab/LabContext';
+import { useAnnounce } from '../shared/a11y';
 import './meter.css';
 
 /** How many of the newest checks the chart compares. */
@@ -104,7 +105,8 @@ export function MeterPage({ assetId }: { assetId: string }) {
         </p>
       </aside>
 
-      <section className="facts" aria-label="Meter facts">
+      <section aria-label="Meter facts">
+        <dl className="facts">
         <Fact label="State">
           <span className={`badge state-badge-${m.state}`} data-testid="meter-state">
             <span aria-hidden="true">{state.symbol}</span> {state.word}
@@ -146,6 +148,7 @@ export function MeterPage({ assetId }: { assetId: string }) {
             ? `${m.planHz.length} frequencies: ${m.planHz.map((f) => formatHzShort(f)).join(', ')}`
             : 'none set'}
         </Fact>
+        </dl>
       </section>
 
       <div className="actions">
@@ -291,6 +294,10 @@ function CheckRows({
         <td>
           <button type="button" className="link" aria-expanded={open} onClick={onToggle}>
             {open ? 'Hide points' : 'Points'}
+            <span className="visually-hidden">
+              {' '}
+              of check {c.checkId}, {c.date}
+            </span>
           </button>
         </td>
       </tr>
@@ -374,6 +381,7 @@ function StateChange({ meter, onChanged }: { meter: Meter; onChanged: () => void
   const api = useLab();
   const options = (['in-service', 'quarantined', 'withdrawn'] as const).filter((s) => s !== meter.state);
   const [target, setTarget] = useState<MeterState>(options[0] ?? 'quarantined');
+  const announce = useAnnounce();
   const [reason, setReason] = useState('');
   const [status, setStatus] = useState<{ kind: 'idle' | 'busy' | 'done' | 'failed'; text: string }>({
     kind: 'idle',
@@ -382,10 +390,14 @@ function StateChange({ meter, onChanged }: { meter: Meter; onChanged: () => void
 
   async function submit(e: React.FormEvent) {
     e.preventDefault();
+    // The button keeps focus while busy (aria-disabled); a second press does nothing.
+    if (status.kind === 'busy') return;
     setStatus({ kind: 'busy', text: 'Saving…' });
     try {
       const m = await api.changeMeterState({ assetId: meter.assetId, state: target, reason });
-      setStatus({ kind: 'done', text: `${m.assetId} is now ${STATE_LABEL[m.state].word.toLowerCase()}.` });
+      const text = `${m.assetId} is now ${STATE_LABEL[m.state].word.toLowerCase()}.`;
+      setStatus({ kind: 'done', text });
+      announce(text);
       setReason('');
       onChanged();
     } catch (err) {
@@ -427,7 +439,7 @@ function StateChange({ meter, onChanged }: { meter: Meter; onChanged: () => void
           minLength={3}
         />
       </label>
-      <button type="submit" className="button" disabled={status.kind === 'busy'}>
+      <button type="submit" className="button" aria-disabled={status.kind === 'busy'}>
         {STATE_ACTION[target]}
       </button>
       {status.kind !== 'idle' && (

@@ -98,6 +98,8 @@ function AddPerson({ onDone }: { onDone: () => void }) {
 
   async function submit(e: React.FormEvent) {
     e.preventDefault();
+    // Busy buttons keep focus (aria-disabled): a second press does nothing.
+    if (status.kind === 'busy') return;
     setStatus({ kind: 'busy' });
     try {
       const p = await api.createPerson({ name, role });
@@ -129,7 +131,7 @@ function AddPerson({ onDone }: { onDone: () => void }) {
         </div>
       </div>
       <div className="actions">
-        <button type="submit" className="button" disabled={status.kind === 'busy'}>
+        <button type="submit" className="button" aria-disabled={status.kind === 'busy'}>
           Add the person
         </button>
       </div>
@@ -155,7 +157,25 @@ function EnrolKey(props: { people: Person[]; signers: Signer[]; onDone: () => vo
 
   async function submit(e: React.FormEvent) {
     e.preventDefault();
-    if (mismatch) return;
+    if (status.kind === 'busy' || mismatch) return;
+    if (who === '' || tooShort || again !== passphrase) {
+      const issues: FieldIssue[] = [];
+      if (who === '') issues.push({ field: 'person', value: '', expected: 'a person', message: 'choose the person' });
+      if (tooShort)
+        issues.push({
+          field: 'passphrase',
+          value: '',
+          expected: `at least ${MIN_PASSPHRASE} characters`,
+          message: `the passphrase needs at least ${MIN_PASSPHRASE} characters`,
+        });
+      else if (again !== passphrase)
+        issues.push({ field: 'again', value: '', expected: 'the same passphrase', message: 'type the passphrase again' });
+      setStatus({ kind: 'failed', message: '', issues });
+      // Focus goes to the first box to put right.
+      const first = issues[0]?.field;
+      document.getElementById(first === 'person' ? whoId : first === 'passphrase' ? passId : againId)?.focus();
+      return;
+    }
     setStatus({ kind: 'busy' });
     try {
       const s = await api.enrolSigner({ name: who, passphrase });
@@ -232,7 +252,7 @@ function EnrolKey(props: { people: Person[]; signers: Signer[]; onDone: () => vo
         <button
           type="submit"
           className="button"
-          disabled={status.kind === 'busy' || who === '' || tooShort || again !== passphrase}
+          aria-disabled={status.kind === 'busy'}
         >
           Make the signing key
         </button>
