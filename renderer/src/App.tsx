@@ -40,32 +40,32 @@ export function App({ api, win = window }: { api: LabApi; win?: Window }) {
   return (
     <LabProvider api={api}>
       <AnnounceProvider>
-      <a
-        className="skip-link"
-        href="#main"
-        onClick={(e) => {
-          // The address is the router's: skipping moves focus only.
-          e.preventDefault();
-          focusQuietly(viewHeading(win.document) ?? win.document.querySelector<HTMLElement>('main'));
-        }}
-      >
-        Skip to main content
-      </a>
-      <nav className="topnav" aria-label="Views">
-        <span className="brand">Dipledger</span>
-        <ul>
-          {TABS.map((t) => (
-            <li key={t.key}>
-              <a href={t.to} aria-current={current === t.key ? 'page' : undefined}>
-                {t.label}
-              </a>
-            </li>
-          ))}
-        </ul>
-      </nav>
-      <main id="main">
-        <View route={route} />
-      </main>
+        <a
+          className="skip-link"
+          href="#main"
+          onClick={(e) => {
+            // The address is the router's: skipping moves focus only.
+            e.preventDefault();
+            focusQuietly(viewHeading(win.document) ?? win.document.querySelector<HTMLElement>('main'));
+          }}
+        >
+          Skip to main content
+        </a>
+        <nav className="topnav" aria-label="Views">
+          <span className="brand">Dipledger</span>
+          <ul>
+            {TABS.map((t) => (
+              <li key={t.key}>
+                <a href={t.to} aria-current={current === t.key ? 'page' : undefined}>
+                  {t.label}
+                </a>
+              </li>
+            ))}
+          </ul>
+        </nav>
+        <main id="main">
+          <View route={route} />
+        </main>
       </AnnounceProvider>
     </LabProvider>
   );

@@ -68,7 +68,10 @@ describe.skipIf(!haveChromium)(
           const { context, page } = await newPage(bench, { scheme, width });
           for (const view of VIEWS) {
             await openView(page, bench, view);
-            await page.screenshot({ path: path.join(dir, `${view.name}-${width}-${scheme}.png`), fullPage: true });
+            await page.screenshot({
+              path: path.join(dir, `${view.name}-${width}-${scheme}.png`),
+              fullPage: true,
+            });
             count += 1;
           }
           await context.close();

@@ -23,8 +23,17 @@ export function DipChart({ fit, name }: { fit: TraceFit; name: string }) {
   const yTicks = niceTicks(low - pad, high + pad, 6);
   return (
     <figure className="chart dip-chart" ref={ref} aria-label={`Swept trace ${name} with the fitted dip`}>
-      <div className="chart-plot" role="img" aria-label={`Measured transmission of the swept trace ${name} against offset from the fitted resonance ${(m.f0Hz / 1e9).toFixed(6)} GHz, with the fitted dip`}>
-        <ComposedChart accessibilityLayer={false} width={width} height={240} margin={{ top: 8, right: 16, bottom: 28, left: 12 }}>
+      <div
+        className="chart-plot"
+        role="img"
+        aria-label={`Measured transmission of the swept trace ${name} against offset from the fitted resonance ${(m.f0Hz / 1e9).toFixed(6)} GHz, with the fitted dip`}
+      >
+        <ComposedChart
+          accessibilityLayer={false}
+          width={width}
+          height={240}
+          margin={{ top: 8, right: 16, bottom: 28, left: 12 }}
+        >
           <CartesianGrid strokeDasharray="2 4" stroke="#9aa3ab" strokeOpacity={0.45} />
           <XAxis
             type="number"
@@ -72,7 +81,14 @@ export function DipChart({ fit, name }: { fit: TraceFit; name: string }) {
         depth = {m.depthDb.toFixed(2)} dB, {m.pointsPerLinewidth} points across the half-depth width
         {fit.report.spurious.length > 0 && ` · ⚠ ${fit.report.spurious.length} spurious dip(s)`}.
       </figcaption>
-      <ChartData name={`Swept trace ${name}`} table={{ caption: `Swept trace ${name}: measured and fitted, by offset from ${(m.f0Hz / 1e9).toFixed(6)} GHz`, columns: ['Offset / MHz', 'Measured / dB', 'Fitted / dB'], rows: rows.map((r) => [cell(r.dfMHz, 4), cell(r.measuredDb, 2), cell(r.fittedDb, 2)]) }} />
+      <ChartData
+        name={`Swept trace ${name}`}
+        table={{
+          caption: `Swept trace ${name}: measured and fitted, by offset from ${(m.f0Hz / 1e9).toFixed(6)} GHz`,
+          columns: ['Offset / MHz', 'Measured / dB', 'Fitted / dB'],
+          rows: rows.map((r) => [cell(r.dfMHz, 4), cell(r.measuredDb, 2), cell(r.fittedDb, 2)]),
+        }}
+      />
     </figure>
   );
 }

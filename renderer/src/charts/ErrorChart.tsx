@@ -124,8 +124,17 @@ export function ErrorChart({ meter, checks }: { meter: Meter; checks: CheckRecor
           </button>
         </div>
       )}
-      <div className="chart-plot" role="img" aria-label={`Error of each check point against frequency, with its expanded uncertainty, inside the band of the stated accuracy (up to ±${tMax.toFixed(1)} ppm)`}>
-        <ComposedChart accessibilityLayer={false} width={width} height={340} margin={{ top: 8, right: 24, bottom: 28, left: 18 }}>
+      <div
+        className="chart-plot"
+        role="img"
+        aria-label={`Error of each check point against frequency, with its expanded uncertainty, inside the band of the stated accuracy (up to ±${tMax.toFixed(1)} ppm)`}
+      >
+        <ComposedChart
+          accessibilityLayer={false}
+          width={width}
+          height={340}
+          margin={{ top: 8, right: 24, bottom: 28, left: 18 }}
+        >
           <CartesianGrid strokeDasharray="2 4" stroke="#9aa3ab" strokeOpacity={0.45} />
           <XAxis
             type="number"
@@ -218,7 +227,23 @@ export function ErrorChart({ meter, checks }: { meter: Meter; checks: CheckRecor
           </strong>
         )}
       </figcaption>
-      <ChartData name={'Error against frequency'} table={{ caption: `Errors of the newest checks of ${meter.assetId}`, columns: ['Check', 'Frequency / GHz', 'Error / ppm', 'U / ppm', 'Tolerance / ppm', 'Verdict'], rows: series.flatMap((s) => s.points.map((p) => [s.name, cell(p.frequencyGhz, 6), cell(p.errorPpm, 1), cell(p.uPpm, 1), cell(tolerancePpm(meter.accuracyRelPpm, meter.accuracyAbsHz, p.frequencyGhz * 1e9), 1), p.verdict])) }} />
+      <ChartData
+        name={'Error against frequency'}
+        table={{
+          caption: `Errors of the newest checks of ${meter.assetId}`,
+          columns: ['Check', 'Frequency / GHz', 'Error / ppm', 'U / ppm', 'Tolerance / ppm', 'Verdict'],
+          rows: series.flatMap((s) =>
+            s.points.map((p) => [
+              s.name,
+              cell(p.frequencyGhz, 6),
+              cell(p.errorPpm, 1),
+              cell(p.uPpm, 1),
+              cell(tolerancePpm(meter.accuracyRelPpm, meter.accuracyAbsHz, p.frequencyGhz * 1e9), 1),
+              p.verdict,
+            ]),
+          ),
+        }}
+      />
     </figure>
   );
 }

@@ -28,8 +28,17 @@ export function HealthChart({ trend }: { trend: TrendReport }) {
   const yTicks = Array.from({ length: Math.floor(yMax / yStep) + 1 }, (_, i) => i * yStep);
   return (
     <figure className="chart health-chart" ref={ref} aria-label="Dip depth and loaded Q against time">
-      <div className="chart-plot" role="img" aria-label={`Dip depth${q.length ? ' and loaded Q' : ''} of each check against its date, with the minimum dip of ${h.minDipDb} dB`}>
-        <ComposedChart accessibilityLayer={false} width={width} height={280} margin={{ top: 8, right: 24, bottom: 28, left: 18 }}>
+      <div
+        className="chart-plot"
+        role="img"
+        aria-label={`Dip depth${q.length ? ' and loaded Q' : ''} of each check against its date, with the minimum dip of ${h.minDipDb} dB`}
+      >
+        <ComposedChart
+          accessibilityLayer={false}
+          width={width}
+          height={280}
+          margin={{ top: 8, right: 24, bottom: 28, left: 18 }}
+        >
           <CartesianGrid strokeDasharray="2 4" stroke="#9aa3ab" strokeOpacity={0.45} />
           <XAxis
             type="number"
@@ -97,7 +106,17 @@ export function HealthChart({ trend }: { trend: TrendReport }) {
         {sweeps.kind === 'ready' && swept.length === 0 && 'No sweeps attached, so no loaded Q to show.'}
         {sweeps.kind === 'failed' && `Sweeps could not be read: ${sweeps.message}`}
       </figcaption>
-      <ChartData name={'Dip depth and loaded Q against time'} table={{ caption: 'Dip depth and loaded Q by date', columns: ['Date', 'Dip depth / dB', 'Loaded Q'], rows: [...h.dip.map((d) => [d.date, cell(d.minDb, 1), '—']), ...swept.map((s) => [s.date, '—', cell(s.loadedQ, 0)])].sort((a, b) => String(a[0]).localeCompare(String(b[0]))) }} />
+      <ChartData
+        name={'Dip depth and loaded Q against time'}
+        table={{
+          caption: 'Dip depth and loaded Q by date',
+          columns: ['Date', 'Dip depth / dB', 'Loaded Q'],
+          rows: [
+            ...h.dip.map((d) => [d.date, cell(d.minDb, 1), '—']),
+            ...swept.map((s) => [s.date, '—', cell(s.loadedQ, 0)]),
+          ].sort((a, b) => String(a[0]).localeCompare(String(b[0]))),
+        }}
+      />
     </figure>
   );
 }

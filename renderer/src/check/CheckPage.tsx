@@ -167,9 +167,15 @@ function SigningPanel(props: { view: CheckRevisionView; signers: Signer[]; onSig
     if (state.kind === 'busy') return;
     if (person === '' || passphrase === '') {
       const issues: FieldIssue[] = [];
-      if (person === '') issues.push({ field: 'person', value: '', expected: 'a signer', message: 'Choose the signer.' });
+      if (person === '')
+        issues.push({ field: 'person', value: '', expected: 'a signer', message: 'Choose the signer.' });
       if (passphrase === '')
-        issues.push({ field: 'passphrase', value: '', expected: 'the passphrase', message: 'Type the signer’s passphrase.' });
+        issues.push({
+          field: 'passphrase',
+          value: '',
+          expected: 'the passphrase',
+          message: 'Type the signer’s passphrase.',
+        });
       setState({ kind: 'failed', message: 'Choose the signer and type the passphrase.', issues });
       return;
     }
@@ -234,7 +240,13 @@ function SigningPanel(props: { view: CheckRevisionView; signers: Signer[]; onSig
             <div className="row">
               <div className="field">
                 <label htmlFor={personId}>Signer</label>
-                <select id={personId} data-field="person" value={person} onChange={(e) => setPerson(e.target.value)} required>
+                <select
+                  id={personId}
+                  data-field="person"
+                  value={person}
+                  onChange={(e) => setPerson(e.target.value)}
+                  required
+                >
                   <option value="">Choose…</option>
                   {signers.map((s) => (
                     <option key={s.person.id} value={s.person.name}>
@@ -256,11 +268,7 @@ function SigningPanel(props: { view: CheckRevisionView; signers: Signer[]; onSig
               </div>
             </div>
             <div className="actions">
-              <button
-                type="submit"
-                className="button primary"
-                aria-disabled={state.kind === 'busy'}
-              >
+              <button type="submit" className="button primary" aria-disabled={state.kind === 'busy'}>
                 {state.kind === 'busy' ? 'Signing…' : `Sign as ${MEANING_WORD[next]}`}
               </button>
             </div>

@@ -107,47 +107,47 @@ export function MeterPage({ assetId }: { assetId: string }) {
 
       <section aria-label="Meter facts">
         <dl className="facts">
-        <Fact label="State">
-          <span className={`badge state-badge-${m.state}`} data-testid="meter-state">
-            <span aria-hidden="true">{state.symbol}</span> {state.word}
-          </span>
-        </Fact>
-        <Fact label="Band">{formatBand(m.minHz, m.maxHz)}</Fact>
-        <Fact label="Stated accuracy">{formatAccuracy(m.accuracyRelPpm, m.accuracyAbsHz)}</Fact>
-        <Fact label="Dial">
-          {m.dialKind === 'direct'
-            ? `direct-reading, resolution ${formatHzShort(m.resolution)}`
-            : `micrometer with chart, resolution ${m.resolution} div`}
-        </Fact>
-        <Fact label="Last check">
-          {r.lastCheckDate ?? 'never'}
-          {r.lastVerdict && (
-            <span className={`verdict verdict-${r.lastVerdict}`}>
-              {' '}
-              <span aria-hidden="true">{VERDICT_LABEL[r.lastVerdict].symbol}</span>{' '}
-              {VERDICT_LABEL[r.lastVerdict].word}
+          <Fact label="State">
+            <span className={`badge state-badge-${m.state}`} data-testid="meter-state">
+              <span aria-hidden="true">{state.symbol}</span> {state.word}
             </span>
-          )}
-        </Fact>
-        <Fact label="Due date">
-          <span
-            className={`days-${m.state === 'withdrawn' ? 'none' : dueStatus(r.daysToDue)}`}
-            data-testid="meter-due"
-          >
-            {r.dueDate ?? '—'}
-            {m.state !== 'withdrawn' && r.daysToDue !== null && ` (${formatDays(r.daysToDue)})`}
-          </span>
-        </Fact>
-        <Fact label="Interval">{m.intervalMonths} months</Fact>
-        <Fact label="Loaded Q">{m.loadedQ.toFixed(0)}</Fact>
-        <Fact label="Reference conditions">
-          {m.reference.temperatureC} °C, {m.reference.pressureHpa} hPa, {m.reference.humidityPct} %RH
-        </Fact>
-        <Fact label="Check plan">
-          {m.planHz.length
-            ? `${m.planHz.length} frequencies: ${m.planHz.map((f) => formatHzShort(f)).join(', ')}`
-            : 'none set'}
-        </Fact>
+          </Fact>
+          <Fact label="Band">{formatBand(m.minHz, m.maxHz)}</Fact>
+          <Fact label="Stated accuracy">{formatAccuracy(m.accuracyRelPpm, m.accuracyAbsHz)}</Fact>
+          <Fact label="Dial">
+            {m.dialKind === 'direct'
+              ? `direct-reading, resolution ${formatHzShort(m.resolution)}`
+              : `micrometer with chart, resolution ${m.resolution} div`}
+          </Fact>
+          <Fact label="Last check">
+            {r.lastCheckDate ?? 'never'}
+            {r.lastVerdict && (
+              <span className={`verdict verdict-${r.lastVerdict}`}>
+                {' '}
+                <span aria-hidden="true">{VERDICT_LABEL[r.lastVerdict].symbol}</span>{' '}
+                {VERDICT_LABEL[r.lastVerdict].word}
+              </span>
+            )}
+          </Fact>
+          <Fact label="Due date">
+            <span
+              className={`days-${m.state === 'withdrawn' ? 'none' : dueStatus(r.daysToDue)}`}
+              data-testid="meter-due"
+            >
+              {r.dueDate ?? '—'}
+              {m.state !== 'withdrawn' && r.daysToDue !== null && ` (${formatDays(r.daysToDue)})`}
+            </span>
+          </Fact>
+          <Fact label="Interval">{m.intervalMonths} months</Fact>
+          <Fact label="Loaded Q">{m.loadedQ.toFixed(0)}</Fact>
+          <Fact label="Reference conditions">
+            {m.reference.temperatureC} °C, {m.reference.pressureHpa} hPa, {m.reference.humidityPct} %RH
+          </Fact>
+          <Fact label="Check plan">
+            {m.planHz.length
+              ? `${m.planHz.length} frequencies: ${m.planHz.map((f) => formatHzShort(f)).join(', ')}`
+              : 'none set'}
+          </Fact>
         </dl>
       </section>
 

@@ -184,8 +184,17 @@ function DriftChart({ trend }: { trend: TrendReport }) {
           </button>
         ))}
       </div>
-      <div className="chart-plot" role="img" aria-label={`Error at ${formatHzShort(f.frequencyHz)} against check date, with the fitted drift and its band${f.projectedExitDate ? `; projected to leave the tolerance on ${f.projectedExitDate}` : ''}`}>
-        <ComposedChart accessibilityLayer={false} width={width} height={340} margin={{ top: 8, right: 24, bottom: 28, left: 18 }}>
+      <div
+        className="chart-plot"
+        role="img"
+        aria-label={`Error at ${formatHzShort(f.frequencyHz)} against check date, with the fitted drift and its band${f.projectedExitDate ? `; projected to leave the tolerance on ${f.projectedExitDate}` : ''}`}
+      >
+        <ComposedChart
+          accessibilityLayer={false}
+          width={width}
+          height={340}
+          margin={{ top: 8, right: 24, bottom: 28, left: 18 }}
+        >
           <CartesianGrid strokeDasharray="2 4" stroke="#9aa3ab" strokeOpacity={0.45} />
           <XAxis
             type="number"
@@ -295,7 +304,14 @@ function DriftChart({ trend }: { trend: TrendReport }) {
           </span>
         )}
       </figcaption>
-      <ChartData name={'Error against time'} table={{ caption: `Error at ${formatHzShort(f.frequencyHz)} by check date`, columns: ['Check date', 'Error / ppm', 'U / ppm', 'Tolerance / ppm'], rows: f.history.map((o) => [o.date, cell(o.errorPpm, 1), cell(o.uPpm, 1), cell(tol, 1)]) }} />
+      <ChartData
+        name={'Error against time'}
+        table={{
+          caption: `Error at ${formatHzShort(f.frequencyHz)} by check date`,
+          columns: ['Check date', 'Error / ppm', 'U / ppm', 'Tolerance / ppm'],
+          rows: f.history.map((o) => [o.date, cell(o.errorPpm, 1), cell(o.uPpm, 1), cell(tol, 1)]),
+        }}
+      />
     </figure>
   );
 }

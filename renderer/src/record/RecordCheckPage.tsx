@@ -28,7 +28,15 @@ import {
   toDocument,
 } from './checkForm';
 import type { CheckForm } from './checkForm';
-import { DraftBar, DraftList, NumberField, RecordProblems, Review, perDirection, problemId } from './FormParts';
+import {
+  DraftBar,
+  DraftList,
+  NumberField,
+  RecordProblems,
+  Review,
+  perDirection,
+  problemId,
+} from './FormParts';
 import type { RecordState } from './FormParts';
 import type { Judged } from './useLiveJudgement';
 import { PointsTable } from './PointsTable';

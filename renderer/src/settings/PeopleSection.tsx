@@ -160,7 +160,8 @@ function EnrolKey(props: { people: Person[]; signers: Signer[]; onDone: () => vo
     if (status.kind === 'busy' || mismatch) return;
     if (who === '' || tooShort || again !== passphrase) {
       const issues: FieldIssue[] = [];
-      if (who === '') issues.push({ field: 'person', value: '', expected: 'a person', message: 'choose the person' });
+      if (who === '')
+        issues.push({ field: 'person', value: '', expected: 'a person', message: 'choose the person' });
       if (tooShort)
         issues.push({
           field: 'passphrase',
@@ -169,11 +170,18 @@ function EnrolKey(props: { people: Person[]; signers: Signer[]; onDone: () => vo
           message: `the passphrase needs at least ${MIN_PASSPHRASE} characters`,
         });
       else if (again !== passphrase)
-        issues.push({ field: 'again', value: '', expected: 'the same passphrase', message: 'type the passphrase again' });
+        issues.push({
+          field: 'again',
+          value: '',
+          expected: 'the same passphrase',
+          message: 'type the passphrase again',
+        });
       setStatus({ kind: 'failed', message: '', issues });
       // Focus goes to the first box to put right.
       const first = issues[0]?.field;
-      document.getElementById(first === 'person' ? whoId : first === 'passphrase' ? passId : againId)?.focus();
+      document
+        .getElementById(first === 'person' ? whoId : first === 'passphrase' ? passId : againId)
+        ?.focus();
       return;
     }
     setStatus({ kind: 'busy' });
@@ -249,11 +257,7 @@ function EnrolKey(props: { people: Person[]; signers: Signer[]; onDone: () => vo
         passphrase cannot be recovered.
       </p>
       <div className="actions">
-        <button
-          type="submit"
-          className="button"
-          aria-disabled={status.kind === 'busy'}
-        >
+        <button type="submit" className="button" aria-disabled={status.kind === 'busy'}>
           Make the signing key
         </button>
       </div>

@@ -20,7 +20,13 @@ export function AnnounceProvider({ children }: { children: ReactNode }) {
   return (
     <AnnounceContext.Provider value={announce}>
       {children}
-      <div className="visually-hidden" role="status" aria-live="polite" aria-atomic="true" data-testid="announcer">
+      <div
+        className="visually-hidden"
+        role="status"
+        aria-live="polite"
+        aria-atomic="true"
+        data-testid="announcer"
+      >
         {said.text && <span key={said.n}>{said.text}</span>}
       </div>
     </AnnounceContext.Provider>
@@ -113,7 +119,10 @@ export function markProblems(root: HTMLElement, problems: FieldProblem[], fallba
   }
   const undo: (() => void)[] = [];
   for (const [el, ids] of marked) {
-    const before = { invalid: el.getAttribute('aria-invalid'), described: el.getAttribute('aria-describedby') };
+    const before = {
+      invalid: el.getAttribute('aria-invalid'),
+      described: el.getAttribute('aria-describedby'),
+    };
     el.setAttribute('aria-invalid', 'true');
     el.setAttribute('aria-describedby', [before.described, ...ids].filter(Boolean).join(' '));
     undo.push(() => {
