@@ -144,7 +144,7 @@ export const VIEWS: { name: string; hash: string; ready: string }[] = [
   { name: 'meter', hash: '#/meter/WG-202', ready: 'figure' },
   { name: 'record', hash: '#/record', ready: 'form' },
   { name: 'record-meter', hash: '#/record/WG-201', ready: 'table' },
-  { name: 'check', hash: '#/check/1', ready: 'figure' },
+  { name: 'check', hash: '#/check/1', ready: 'table' },
   { name: 'use', hash: '#/use', ready: 'form' },
   { name: 'standards', hash: '#/standards', ready: 'table' },
   { name: 'documents', hash: '#/documents', ready: 'h2' },
