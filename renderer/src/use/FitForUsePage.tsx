@@ -134,9 +134,7 @@ function Answers({
             {report.answers.map((a) => (
               <tr key={a.assetId} data-asset-id={a.assetId} className={a.fit ? undefined : 'not-fit'}>
                 <th scope="row" className="asset">
-                  <a href={href.meter(a.assetId)} aria-label={`Meter ${a.assetId}`}>
-                    {a.assetId}
-                  </a>
+                  <a href={href.meter(a.assetId)}>{a.assetId}</a>
                 </th>
                 <td className="wrap">
                   {a.fit ? (
