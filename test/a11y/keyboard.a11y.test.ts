@@ -51,11 +51,11 @@ describe.skipIf(!haveChromium)(
         await page.goto(`${bench.url}${hash}`);
         await page.locator('main h1').waitFor();
         await page.keyboard.press('Tab');
-        expect((await focused(page)).text).toBe('Skip to main content');
+        const first = await focused(page);
+        expect(`${first.tag}: ${first.text}`, hash).toBe('a: Skip to main content');
         expect(await page.locator('.skip-link').isVisible()).toBe(true);
         await page.keyboard.press('Enter');
-        const f = await focused(page);
-        expect(f).toMatchObject({ tag: 'h1', inMain: true });
+        expect(await focused(page), hash).toMatchObject({ tag: 'h1', inMain: true });
         expect(page.url()).toContain(hash);
       }
     });

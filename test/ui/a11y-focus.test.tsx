@@ -47,6 +47,8 @@ describe('the window shell', () => {
     render(<App api={fakeBench().api} />);
     await screen.findByRole('heading', { level: 1, name: 'Lab standards' });
     expect(document.activeElement).toBe(document.body);
+    // As after following a link of the navigation bar: focus leaves the bar for the view.
+    screen.getByRole('link', { name: 'Settings' }).focus();
     await go('#/settings');
     const h1 = await screen.findByRole('heading', { level: 1, name: 'Settings' });
     await waitFor(() => expect(document.activeElement).toBe(h1));

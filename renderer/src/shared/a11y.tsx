@@ -51,8 +51,9 @@ const SETTLE_MS = 4000;
 
 /**
  * Moves focus to the new view's heading whenever `viewKey` changes (not on the first load, so the
- * skip link stays the first Tab stop). While the view loads its heading may be drawn anew; focus
- * follows it for a few seconds unless the person has moved it elsewhere.
+ * skip link stays the first Tab stop), from wherever it was outside the view (the navigation bar,
+ * a button that went with the old view). While the view loads its heading may be drawn anew;
+ * focus follows it for a few seconds unless the person has moved on inside the view.
  */
 export function useFocusOnViewChange(viewKey: string, doc: Document = document): void {
   const first = useRef(true);
@@ -65,7 +66,9 @@ export function useFocusOnViewChange(viewKey: string, doc: Document = document):
     let target: HTMLElement | null = null;
     const settle = () => {
       const active = doc.activeElement;
-      const lost = !active || active === doc.body || !active.isConnected || active === target;
+      // Focus moves unless the person has already gone on to something inside the new view.
+      const lost =
+        !active || active === doc.body || !active.isConnected || active === target || !main?.contains(active);
       const heading = viewHeading(doc);
       if (heading && lost && heading !== active) {
         if (focusQuietly(heading)) target = heading;
