@@ -56,12 +56,12 @@ const SETTLE_MS = 4000;
  * focus follows it for a few seconds unless the person has moved on inside the view.
  */
 export function useFocusOnViewChange(viewKey: string, doc: Document = document): void {
-  const first = useRef(true);
+  // The key focus was last placed for: the first load counts as placed (and an effect run twice
+  // for the same key, as React may do, moves nothing).
+  const placed = useRef(viewKey);
   useEffect(() => {
-    if (first.current) {
-      first.current = false;
-      return;
-    }
+    if (placed.current === viewKey) return;
+    placed.current = viewKey;
     const main = doc.querySelector('main');
     let target: HTMLElement | null = null;
     const settle = () => {
