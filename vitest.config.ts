@@ -3,7 +3,7 @@ import { defineConfig } from 'vitest/config';
 export default defineConfig({
   test: {
     include: ['test/**/*.test.ts', 'test/**/*.test.tsx'],
-    exclude: ['test/bench/**', 'node_modules/**'],
+    exclude: ['test/bench/**', 'test/a11y/**', 'node_modules/**'],
     testTimeout: 30000,
     hookTimeout: 60000,
     pool: 'forks',

@@ -11,6 +11,7 @@ import { RegisterPage } from './register/RegisterPage';
 import { SettingsPage } from './settings/SettingsPage';
 import { StandardsPage } from './standards/StandardsPage';
 import { LabProvider } from './lab/LabContext';
+import { AnnounceProvider, focusQuietly, useFocusOnViewChange, viewHeading } from './shared/a11y';
 import { href, parseRoute, section } from './shared/routes';
 import type { Route } from './shared/routes';
 
@@ -34,22 +35,38 @@ export function App({ api, win = window }: { api: LabApi; win?: Window }) {
     return () => win.removeEventListener('hashchange', onHash);
   }, [win]);
   const current = section(route);
+  useFocusOnViewChange(JSON.stringify(route), win.document);
 
   return (
     <LabProvider api={api}>
-      <nav className="topnav" aria-label="Views">
-        <span className="brand">Dipledger</span>
-        <ul>
-          {TABS.map((t) => (
-            <li key={t.key}>
-              <a href={t.to} aria-current={current === t.key ? 'page' : undefined}>
-                {t.label}
-              </a>
-            </li>
-          ))}
-        </ul>
-      </nav>
-      <View route={route} />
+      <AnnounceProvider>
+        <a
+          className="skip-link"
+          href="#main"
+          onClick={(e) => {
+            // The address is the router's: skipping moves focus only.
+            e.preventDefault();
+            focusQuietly(viewHeading(win.document) ?? win.document.querySelector<HTMLElement>('main'));
+          }}
+        >
+          Skip to main content
+        </a>
+        <nav className="topnav" aria-label="Views">
+          <span className="brand">Dipledger</span>
+          <ul>
+            {TABS.map((t) => (
+              <li key={t.key}>
+                <a href={t.to} aria-current={current === t.key ? 'page' : undefined}>
+                  {t.label}
+                </a>
+              </li>
+            ))}
+          </ul>
+        </nav>
+        <main id="main">
+          <View route={route} />
+        </main>
+      </AnnounceProvider>
     </LabProvider>
   );
 }

@@ -2,6 +2,7 @@
 import './base.css';
 import './shared/shared.css';
 import './shared/forms.css';
+import './shared/reflow.css';
 import { StrictMode } from 'react';
 import { createRoot } from 'react-dom/client';
 import { labClient } from './lab/client';

@@ -34,13 +34,22 @@ describe('people and signing keys in the settings', () => {
     fireEvent.change(within(form).getByLabelText('Person'), { target: { value: 'Tess Quarry' } });
     type(within(form).getByLabelText(/^Passphrase \(at least 10/), 'short');
     type(within(form).getByLabelText('Passphrase again'), 'short');
-    expect(make.disabled).toBe(true);
+    // The button stays pressable (focus is never dropped); pressing it says what is wrong.
+    fireEvent.click(make);
+    const refusal = await within(form).findByRole('alert');
+    expect(refusal.textContent).toContain('the passphrase needs at least 10 characters');
+    const pass = within(form).getByLabelText(/^Passphrase \(at least 10/);
+    await waitFor(() => expect(document.activeElement).toBe(pass));
+    expect(pass.getAttribute('aria-invalid')).toBe('true');
+    expect(pass.getAttribute('aria-describedby')).toBe(refusal.id);
+    expect(bench.calls.some((c) => c.op === 'enrolSigner')).toBe(false);
     type(within(form).getByLabelText(/^Passphrase \(at least 10/), 'tess-long-passphrase');
     type(within(form).getByLabelText('Passphrase again'), 'tess-long-passphrasE');
     expect(within(form).getByText(/the two passphrases differ/)).toBeTruthy();
-    expect(make.disabled).toBe(true);
+    fireEvent.click(make);
+    expect(bench.calls.some((c) => c.op === 'enrolSigner')).toBe(false);
     type(within(form).getByLabelText('Passphrase again'), 'tess-long-passphrase');
-    expect(make.disabled).toBe(false);
+    expect(make.getAttribute('aria-disabled')).toBe('false');
     fireEvent.click(make);
     expect(await screen.findByText(/Tess Quarry can sign/)).toBeTruthy();
     expect(bench.calls.filter((c) => c.op === 'enrolSigner')).toEqual([

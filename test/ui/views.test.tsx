@@ -92,7 +92,7 @@ describe('a meter page', () => {
         <MeterPage assetId="WM-003" />
       </LabProvider>,
     );
-    const row = (await screen.findAllByRole('button', { name: 'Points' }))[0]!;
+    const row = (await screen.findAllByRole('button', { name: /^Points of check \d+, / }))[0]!;
     fireEvent.click(row);
     expect(await screen.findByText('+120.0 ppm')).toBeTruthy();
     expect(screen.getAllByText('±60 ppm (2.00)').length).toBe(3);

@@ -15,6 +15,7 @@ import {
   XAxis,
   YAxis,
 } from 'recharts';
+import { ChartData, cell } from './ChartData';
 import type { CheckRecord, Meter } from '../../../app/api/contract';
 import type { Phase } from '../../../app/engine/model';
 import { VERDICT_LABEL, formatPpm, tolerancePpm } from '../shared/format';
@@ -119,88 +120,99 @@ export function ErrorChart({ meter, checks }: { meter: Meter; checks: CheckRecor
           </button>
         </div>
       )}
-      <ComposedChart width={width} height={340} margin={{ top: 8, right: 24, bottom: 28, left: 18 }}>
-        <CartesianGrid strokeDasharray="2 4" stroke="#9aa3ab" strokeOpacity={0.45} />
-        <XAxis
-          type="number"
-          dataKey="frequencyGhz"
-          domain={[lo - pad, hi + pad]}
-          allowDataOverflow
-          ticks={niceTicks(lo, hi, 10)}
-          tickFormatter={(v: number) => plain(v, 6)}
-          label={{ value: 'reference frequency / GHz', position: 'insideBottom', offset: -16 }}
-        />
-        <YAxis
-          type="number"
-          domain={[-yMax, yMax]}
-          allowDataOverflow
-          ticks={roundTicks(-yMax, yMax, 8)}
-          tickFormatter={(v: number) => plain(v, 6)}
-          width={64}
-          label={{ value: 'error / ppm', angle: -90, position: 'insideLeft', offset: 0, dy: 30 }}
-        />
-        <Area
-          data={band}
-          dataKey="band"
-          name={`tolerance ±${meter.accuracyRelPpm} ppm`}
-          stroke="none"
-          fill="#8fb3cc"
-          fillOpacity={0.22}
-          activeDot={false}
-          isAnimationActive={false}
-          legendType="rect"
-        />
-        <Line
-          data={band}
-          dataKey="upper"
-          stroke="#8a4b45"
-          strokeDasharray="6 3"
-          dot={false}
-          activeDot={false}
-          isAnimationActive={false}
-          legendType="none"
-          name="upper tolerance limit"
-        />
-        <Line
-          data={band}
-          dataKey="lower"
-          stroke="#8a4b45"
-          strokeDasharray="6 3"
-          dot={false}
-          activeDot={false}
-          isAnimationActive={false}
-          legendType="none"
-          name="lower tolerance limit"
-        />
-        <ReferenceLine y={0} stroke="#56606b" />
-        {series.map((s, i) => {
-          // The newest check keeps the first look, whatever the number of checks shown.
-          const look = SERIES[series.length - 1 - i] ?? SERIES[0];
-          return (
-            <Scatter
-              key={s.name}
-              name={s.name}
-              data={s.points}
-              dataKey="errorPpm"
-              fill={look.color}
-              shape={look.shape}
-              line={{ stroke: look.color, strokeOpacity: 0.5 }}
-              isAnimationActive={false}
-            >
-              <ErrorBar
-                dataKey="uPpm"
-                direction="y"
-                width={5}
-                stroke={look.color}
-                strokeWidth={1.2}
+      <div
+        className="chart-plot"
+        role="img"
+        aria-label={`Error of each check point against frequency, with its expanded uncertainty, inside the band of the stated accuracy (up to ±${plain(tMax, 1)} ppm)`}
+      >
+        <ComposedChart
+          accessibilityLayer={false}
+          width={width}
+          height={340}
+          margin={{ top: 8, right: 24, bottom: 28, left: 18 }}
+        >
+          <CartesianGrid strokeDasharray="2 4" stroke="#9aa3ab" strokeOpacity={0.45} />
+          <XAxis
+            type="number"
+            dataKey="frequencyGhz"
+            domain={[lo - pad, hi + pad]}
+            allowDataOverflow
+            ticks={niceTicks(lo, hi, 10)}
+            tickFormatter={(v: number) => plain(v, 6)}
+            label={{ value: 'reference frequency / GHz', position: 'insideBottom', offset: -16 }}
+          />
+          <YAxis
+            type="number"
+            domain={[-yMax, yMax]}
+            allowDataOverflow
+            ticks={roundTicks(-yMax, yMax, 8)}
+            tickFormatter={(v: number) => plain(v, 6)}
+            width={64}
+            label={{ value: 'error / ppm', angle: -90, position: 'insideLeft', offset: 0, dy: 30 }}
+          />
+          <Area
+            data={band}
+            dataKey="band"
+            name={`tolerance ±${meter.accuracyRelPpm} ppm`}
+            stroke="none"
+            fill="#8fb3cc"
+            fillOpacity={0.22}
+            activeDot={false}
+            isAnimationActive={false}
+            legendType="rect"
+          />
+          <Line
+            data={band}
+            dataKey="upper"
+            stroke="#8a4b45"
+            strokeDasharray="6 3"
+            dot={false}
+            activeDot={false}
+            isAnimationActive={false}
+            legendType="none"
+            name="upper tolerance limit"
+          />
+          <Line
+            data={band}
+            dataKey="lower"
+            stroke="#8a4b45"
+            strokeDasharray="6 3"
+            dot={false}
+            activeDot={false}
+            isAnimationActive={false}
+            legendType="none"
+            name="lower tolerance limit"
+          />
+          <ReferenceLine y={0} stroke="#56606b" />
+          {series.map((s, i) => {
+            // The newest check keeps the first look, whatever the number of checks shown.
+            const look = SERIES[series.length - 1 - i] ?? SERIES[0];
+            return (
+              <Scatter
+                key={s.name}
+                name={s.name}
+                data={s.points}
+                dataKey="errorPpm"
+                fill={look.color}
+                shape={look.shape}
+                line={{ stroke: look.color, strokeOpacity: 0.5 }}
                 isAnimationActive={false}
-              />
-            </Scatter>
-          );
-        })}
-        <Tooltip content={<PointTip />} />
-        <Legend verticalAlign="top" height={30} />
-      </ComposedChart>
+              >
+                <ErrorBar
+                  dataKey="uPpm"
+                  direction="y"
+                  width={5}
+                  stroke={look.color}
+                  strokeWidth={1.2}
+                  isAnimationActive={false}
+                />
+              </Scatter>
+            );
+          })}
+          <Tooltip content={<PointTip />} />
+          <Legend verticalAlign="top" height={30} />
+        </ComposedChart>
+      </div>
       <figcaption className="chart-caption">
         Error of the corrected reading against the reference, ppm, with bars of ±U (expanded uncertainty,
         about 95 %). Shaded: tolerance of the stated accuracy; dashed: its limits.
@@ -212,6 +224,23 @@ export function ErrorChart({ meter, checks }: { meter: Meter; checks: CheckRecor
           </strong>
         )}
       </figcaption>
+      <ChartData
+        name={'Error against frequency'}
+        table={{
+          caption: `Errors of the newest checks of ${meter.assetId}`,
+          columns: ['Check', 'Frequency / GHz', 'Error / ppm', 'U / ppm', 'Tolerance / ppm', 'Verdict'],
+          rows: series.flatMap((s) =>
+            s.points.map((p) => [
+              s.name,
+              cell(p.frequencyGhz, 6),
+              cell(p.errorPpm, 1),
+              cell(p.uPpm, 1),
+              cell(tolerancePpm(meter.accuracyRelPpm, meter.accuracyAbsHz, p.frequencyGhz * 1e9), 1),
+              p.verdict,
+            ]),
+          ),
+        }}
+      />
     </figure>
   );
 }

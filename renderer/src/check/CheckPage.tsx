@@ -1,7 +1,7 @@
 // One check as it is signed and issued: its points and verdicts, who signed it with what meaning,
 // the next signature it waits for (name and passphrase, the two components of an electronic
 // signature), and, once signed, its check-sheet and certificate. Recording a check ends here.
-import { useEffect, useId, useState } from 'react';
+import { useEffect, useId, useRef, useState } from 'react';
 import type { LabApi } from '../../../app/api/contract';
 import type { IssuedDocument, IssuedDocumentFile } from '../../../app/api/contract-documents';
 import type { CheckRevisionView, Signer } from '../../../app/api/contract-records';
@@ -14,6 +14,7 @@ import { href } from '../shared/routes';
 import { usePdfUrl } from '../meter/WorksheetButton';
 import { messageOf, useLoad } from '../shared/useLoad';
 import { useLab } from '../lab/LabContext';
+import { focusQuietly, markProblems, useAnnounce } from '../shared/a11y';
 import './check.css';
 
 interface Loaded {
@@ -144,14 +145,48 @@ function SigningPanel(props: { view: CheckRevisionView; signers: Signer[]; onSig
   >({ kind: 'idle' });
   const next = view.awaiting;
   const newest = view.revisions.at(-1)?.revision === view.record.revision;
+  const announce = useAnnounce();
+  const headingRef = useRef<HTMLHeadingElement>(null);
+  const formRef = useRef<HTMLFormElement>(null);
+  const problemsId = useId();
+
+  // A refusal marks the signer or passphrase box it names and focuses it (or the message).
+  useEffect(() => {
+    const root = formRef.current;
+    if (state.kind !== 'failed' || !root) return;
+    return markProblems(
+      root,
+      state.issues.map((i) => ({ field: i.field, messageId: problemsId })),
+      root.ownerDocument.getElementById(problemsId),
+    );
+  }, [state, problemsId]);
 
   async function sign(e: React.FormEvent) {
     e.preventDefault();
+    // The button stays focusable (aria-disabled): pressing it early says what is missing.
+    if (state.kind === 'busy') return;
+    if (person === '' || passphrase === '') {
+      const issues: FieldIssue[] = [];
+      if (person === '')
+        issues.push({ field: 'person', value: '', expected: 'a signer', message: 'Choose the signer.' });
+      if (passphrase === '')
+        issues.push({
+          field: 'passphrase',
+          value: '',
+          expected: 'the passphrase',
+          message: 'Type the signer’s passphrase.',
+        });
+      setState({ kind: 'failed', message: 'Choose the signer and type the passphrase.', issues });
+      return;
+    }
     setState({ kind: 'busy' });
     try {
       await api.signCheck({ checkId: view.record.checkId, person, passphrase, meaning: next ?? undefined });
       setPassphrase('');
       setState({ kind: 'idle' });
+      announce(`Check ${view.record.checkId} signed as ${MEANING_WORD[next ?? 'performed']} by ${person}.`);
+      // The form goes once signed: focus moves to the list of signatures that now holds it.
+      focusQuietly(headingRef.current);
       onSigned();
     } catch (err) {
       // The passphrase is cleared on every attempt: it is never kept longer than one try.
@@ -166,7 +201,9 @@ function SigningPanel(props: { view: CheckRevisionView; signers: Signer[]; onSig
 
   return (
     <section className="panel" aria-labelledby="sign-h">
-      <h2 id="sign-h">Signatures</h2>
+      <h2 id="sign-h" ref={headingRef}>
+        Signatures
+      </h2>
       {view.signatures.length === 0 ? (
         <p className="muted">
           Not signed yet. The first signature locks this revision; a correction is always a new revision with
@@ -189,7 +226,13 @@ function SigningPanel(props: { view: CheckRevisionView; signers: Signer[]; onSig
             No one in this lab has a signing key yet: enrol one in <a href={href.settings()}>Settings</a>.
           </p>
         ) : (
-          <form className="sign-form" onSubmit={(e) => void sign(e)} noValidate aria-label="Sign this check">
+          <form
+            ref={formRef}
+            className="sign-form"
+            onSubmit={(e) => void sign(e)}
+            noValidate
+            aria-label="Sign this check"
+          >
             <p>
               This revision waits for the signature meaning <strong>{MEANING_WORD[next]}</strong>. Signing
               locks it: later changes become a new revision with a reason.
@@ -197,7 +240,13 @@ function SigningPanel(props: { view: CheckRevisionView; signers: Signer[]; onSig
             <div className="row">
               <div className="field">
                 <label htmlFor={personId}>Signer</label>
-                <select id={personId} value={person} onChange={(e) => setPerson(e.target.value)} required>
+                <select
+                  id={personId}
+                  data-field="person"
+                  value={person}
+                  onChange={(e) => setPerson(e.target.value)}
+                  required
+                >
                   <option value="">Choose…</option>
                   {signers.map((s) => (
                     <option key={s.person.id} value={s.person.name}>
@@ -210,6 +259,7 @@ function SigningPanel(props: { view: CheckRevisionView; signers: Signer[]; onSig
                 <label htmlFor={passId}>Passphrase</label>
                 <input
                   id={passId}
+                  data-field="passphrase"
                   type="password"
                   autoComplete="off"
                   value={passphrase}
@@ -218,15 +268,11 @@ function SigningPanel(props: { view: CheckRevisionView; signers: Signer[]; onSig
               </div>
             </div>
             <div className="actions">
-              <button
-                type="submit"
-                className="button primary"
-                disabled={state.kind === 'busy' || person === '' || passphrase === ''}
-              >
+              <button type="submit" className="button primary" aria-disabled={state.kind === 'busy'}>
                 {state.kind === 'busy' ? 'Signing…' : `Sign as ${MEANING_WORD[next]}`}
               </button>
             </div>
-            {state.kind === 'failed' && <Problems verb="Not signed" state={state} />}
+            {state.kind === 'failed' && <Problems verb="Not signed" state={state} id={problemsId} />}
           </form>
         )
       ) : (
@@ -256,7 +302,10 @@ function IssuePanel(props: { view: CheckRevisionView; documents: IssuedDocument[
   const signed = view.effectiveRevision !== null;
   const has = (k: IssueKind) => documents.some((d) => d.kind === k);
 
+  const announce = useAnnounce();
+
   async function issue(what: IssueKind) {
+    if (state.kind === 'busy') return;
     setState({ kind: 'busy', what });
     const input = {
       checkId: view.record.checkId,
@@ -265,6 +314,7 @@ function IssuePanel(props: { view: CheckRevisionView; documents: IssuedDocument[
     try {
       const file = what === 'certificate' ? await api.issueCertificate(input) : await api.issueSheet(input);
       setState({ kind: 'issued', file });
+      announce(`${file.kind === 'certificate' ? 'Certificate' : 'Check-sheet'} ${file.number} issued.`);
       setReason('');
       onIssued();
     } catch (err) {
@@ -303,7 +353,7 @@ function IssuePanel(props: { view: CheckRevisionView; documents: IssuedDocument[
             <button
               type="button"
               className="button"
-              disabled={state.kind === 'busy'}
+              aria-disabled={state.kind === 'busy'}
               onClick={() => void issue('sheet')}
             >
               {has('sheet') ? 'Issue a replacement check-sheet' : 'Issue the check-sheet'}
@@ -311,7 +361,7 @@ function IssuePanel(props: { view: CheckRevisionView; documents: IssuedDocument[
             <button
               type="button"
               className="button primary"
-              disabled={state.kind === 'busy'}
+              aria-disabled={state.kind === 'busy'}
               onClick={() => void issue('certificate')}
             >
               {has('certificate') ? 'Issue a replacement certificate' : 'Issue the certificate'}

@@ -38,10 +38,10 @@ export function DccDownload({ number, revision }: { number: string; revision: nu
       <button
         type="button"
         className="link"
-        disabled={state.kind === 'busy'}
+        aria-disabled={state.kind === 'busy'}
         title="Digital Calibration Certificate: the certificate's content as XML (DCC 3.1.2)"
         aria-label={`Download the DCC (XML) of ${number} revision ${revision}`}
-        onClick={() => void fetchDcc()}
+        onClick={() => state.kind !== 'busy' && void fetchDcc()}
       >
         DCC (XML)
       </button>

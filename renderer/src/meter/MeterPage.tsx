@@ -24,6 +24,7 @@ import { href } from '../shared/routes';
 import { WorksheetButton } from './WorksheetButton';
 import { messageOf, useLoad } from '../shared/useLoad';
 import { useLab } from '../lab/LabContext';
+import { useAnnounce } from '../shared/a11y';
 import './meter.css';
 import { decimal, significant } from '../../../app/model/quantity-format';
 
@@ -105,48 +106,50 @@ export function MeterPage({ assetId }: { assetId: string }) {
         </p>
       </aside>
 
-      <section className="facts" aria-label="Meter facts">
-        <Fact label="State">
-          <span className={`badge state-badge-${m.state}`} data-testid="meter-state">
-            <span aria-hidden="true">{state.symbol}</span> {state.word}
-          </span>
-        </Fact>
-        <Fact label="Band">{formatBand(m.minHz, m.maxHz)}</Fact>
-        <Fact label="Stated accuracy">{formatAccuracy(m.accuracyRelPpm, m.accuracyAbsHz)}</Fact>
-        <Fact label="Dial">
-          {m.dialKind === 'direct'
-            ? `direct-reading, resolution ${formatHzShort(m.resolution)}`
-            : `micrometer with chart, resolution ${m.resolution} div`}
-        </Fact>
-        <Fact label="Last check">
-          {r.lastCheckDate ?? 'never'}
-          {r.lastVerdict && (
-            <span className={`verdict verdict-${r.lastVerdict}`}>
-              {' '}
-              <span aria-hidden="true">{VERDICT_LABEL[r.lastVerdict].symbol}</span>{' '}
-              {VERDICT_LABEL[r.lastVerdict].word}
+      <section aria-label="Meter facts">
+        <dl className="facts">
+          <Fact label="State">
+            <span className={`badge state-badge-${m.state}`} data-testid="meter-state">
+              <span aria-hidden="true">{state.symbol}</span> {state.word}
             </span>
-          )}
-        </Fact>
-        <Fact label="Due date">
-          <span
-            className={`days-${m.state === 'withdrawn' ? 'none' : dueStatus(r.daysToDue)}`}
-            data-testid="meter-due"
-          >
-            {r.dueDate ?? '—'}
-            {m.state !== 'withdrawn' && r.daysToDue !== null && ` (${formatDays(r.daysToDue)})`}
-          </span>
-        </Fact>
-        <Fact label="Interval">{m.intervalMonths} months</Fact>
-        <Fact label="Loaded Q">{m.loadedQ.toFixed(0)}</Fact>
-        <Fact label="Reference conditions">
-          {m.reference.temperatureC} °C, {m.reference.pressureHpa} hPa, {m.reference.humidityPct} %RH
-        </Fact>
-        <Fact label="Check plan">
-          {m.planHz.length
-            ? `${m.planHz.length} frequencies: ${m.planHz.map((f) => formatHzShort(f)).join(', ')}`
-            : 'none set'}
-        </Fact>
+          </Fact>
+          <Fact label="Band">{formatBand(m.minHz, m.maxHz)}</Fact>
+          <Fact label="Stated accuracy">{formatAccuracy(m.accuracyRelPpm, m.accuracyAbsHz)}</Fact>
+          <Fact label="Dial">
+            {m.dialKind === 'direct'
+              ? `direct-reading, resolution ${formatHzShort(m.resolution)}`
+              : `micrometer with chart, resolution ${m.resolution} div`}
+          </Fact>
+          <Fact label="Last check">
+            {r.lastCheckDate ?? 'never'}
+            {r.lastVerdict && (
+              <span className={`verdict verdict-${r.lastVerdict}`}>
+                {' '}
+                <span aria-hidden="true">{VERDICT_LABEL[r.lastVerdict].symbol}</span>{' '}
+                {VERDICT_LABEL[r.lastVerdict].word}
+              </span>
+            )}
+          </Fact>
+          <Fact label="Due date">
+            <span
+              className={`days-${m.state === 'withdrawn' ? 'none' : dueStatus(r.daysToDue)}`}
+              data-testid="meter-due"
+            >
+              {r.dueDate ?? '—'}
+              {m.state !== 'withdrawn' && r.daysToDue !== null && ` (${formatDays(r.daysToDue)})`}
+            </span>
+          </Fact>
+          <Fact label="Interval">{m.intervalMonths} months</Fact>
+          <Fact label="Loaded Q">{m.loadedQ.toFixed(0)}</Fact>
+          <Fact label="Reference conditions">
+            {m.reference.temperatureC} °C, {m.reference.pressureHpa} hPa, {m.reference.humidityPct} %RH
+          </Fact>
+          <Fact label="Check plan">
+            {m.planHz.length
+              ? `${m.planHz.length} frequencies: ${m.planHz.map((f) => formatHzShort(f)).join(', ')}`
+              : 'none set'}
+          </Fact>
+        </dl>
       </section>
 
       <div className="actions">
@@ -292,6 +295,10 @@ function CheckRows({
         <td>
           <button type="button" className="link" aria-expanded={open} onClick={onToggle}>
             {open ? 'Hide points' : 'Points'}
+            <span className="visually-hidden">
+              {' '}
+              of check {c.checkId}, {c.date}
+            </span>
           </button>
         </td>
       </tr>
@@ -375,6 +382,7 @@ function StateChange({ meter, onChanged }: { meter: Meter; onChanged: () => void
   const api = useLab();
   const options = (['in-service', 'quarantined', 'withdrawn'] as const).filter((s) => s !== meter.state);
   const [target, setTarget] = useState<MeterState>(options[0] ?? 'quarantined');
+  const announce = useAnnounce();
   const [reason, setReason] = useState('');
   const [status, setStatus] = useState<{ kind: 'idle' | 'busy' | 'done' | 'failed'; text: string }>({
     kind: 'idle',
@@ -383,10 +391,14 @@ function StateChange({ meter, onChanged }: { meter: Meter; onChanged: () => void
 
   async function submit(e: React.FormEvent) {
     e.preventDefault();
+    // The button keeps focus while busy (aria-disabled); a second press does nothing.
+    if (status.kind === 'busy') return;
     setStatus({ kind: 'busy', text: 'Saving…' });
     try {
       const m = await api.changeMeterState({ assetId: meter.assetId, state: target, reason });
-      setStatus({ kind: 'done', text: `${m.assetId} is now ${STATE_LABEL[m.state].word.toLowerCase()}.` });
+      const text = `${m.assetId} is now ${STATE_LABEL[m.state].word.toLowerCase()}.`;
+      setStatus({ kind: 'done', text });
+      announce(text);
       setReason('');
       onChanged();
     } catch (err) {
@@ -428,7 +440,7 @@ function StateChange({ meter, onChanged }: { meter: Meter; onChanged: () => void
           minLength={3}
         />
       </label>
-      <button type="submit" className="button" disabled={status.kind === 'busy'}>
+      <button type="submit" className="button" aria-disabled={status.kind === 'busy'}>
         {STATE_ACTION[target]}
       </button>
       {status.kind !== 'idle' && (

@@ -60,7 +60,9 @@ export function CheckRevisions({ detail }: { detail: MeterDetail }) {
                     href={href.check(v.record.checkId)}
                     title="Open the check to sign it or issue its documents"
                   >
+                    <span className="visually-hidden">Check </span>
                     {v.record.checkId}
+                    <span className="visually-hidden">, {v.record.date}</span>
                   </a>
                 </td>
                 <td>

@@ -15,6 +15,7 @@ import {
   XAxis,
   YAxis,
 } from 'recharts';
+import { ChartData, cell } from '../charts/ChartData';
 import type { FrequencyTrend, HistoryFlag, TrendReport } from '../../../app/api/contract-history';
 import { HealthChart } from '../charts/HealthChart';
 import { formatHzShort, formatPpm } from '../shared/format';
@@ -184,93 +185,104 @@ function DriftChart({ trend }: { trend: TrendReport }) {
           </button>
         ))}
       </div>
-      <ComposedChart width={width} height={340} margin={{ top: 8, right: 24, bottom: 28, left: 18 }}>
-        <CartesianGrid strokeDasharray="2 4" stroke="#9aa3ab" strokeOpacity={0.45} />
-        <XAxis
-          type="number"
-          dataKey="t"
-          domain={[x0, x1]}
-          allowDataOverflow
-          ticks={ticks}
-          tickFormatter={(v: number) => String(yearOf(v))}
-          label={{ value: 'check date / year', position: 'insideBottom', offset: -16 }}
-        />
-        <YAxis
-          type="number"
-          domain={[-yMax, yMax]}
-          allowDataOverflow
-          width={64}
-          label={{ value: 'error / ppm', angle: -90, position: 'insideLeft', offset: 0, dy: 30 }}
-        />
-        <Area
-          data={band}
-          dataKey="band"
-          name="95 % prediction of the next check"
-          stroke="none"
-          fill="#c9a66b"
-          fillOpacity={0.3}
-          activeDot={false}
-          isAnimationActive={false}
-          legendType="rect"
-        />
-        <Line
-          data={band}
-          dataKey="predictedPpm"
-          name="fitted drift"
-          stroke="#8a6a2f"
-          strokeDasharray="4 3"
-          dot={false}
-          activeDot={false}
-          isAnimationActive={false}
-        />
-        <ReferenceLine
-          y={tol}
-          stroke="#8a4b45"
-          strokeWidth={1.5}
-          label={{ value: `+${tol.toFixed(0)} ppm tolerance`, position: 'insideTopLeft', fontSize: 12 }}
-        />
-        <ReferenceLine
-          y={-tol}
-          stroke="#8a4b45"
-          strokeWidth={1.5}
-          label={{ value: `−${tol.toFixed(0)} ppm tolerance`, position: 'insideBottomLeft', fontSize: 12 }}
-        />
-        <ReferenceLine y={0} stroke="#56606b" />
-        {dueMs !== null && (
-          <ReferenceLine
-            x={dueMs}
-            stroke="#2f5d7c"
-            strokeDasharray="2 3"
-            label={{ value: 'due', position: 'insideTopRight', offset: 8, fontSize: 12 }}
-          />
-        )}
-        {exitMs !== null && (
-          <ReferenceLine
-            x={exitMs}
-            stroke="#8a4b45"
-            strokeDasharray="6 3"
-            label={{
-              // The date is in the caption: a long label here would cross the due line.
-              value: '⚠ exit',
-              position: 'insideBottomRight',
-              offset: 10,
-              fontSize: 12,
-            }}
-          />
-        )}
-        <Scatter
-          name="as-found error ± U"
-          data={points}
-          dataKey="errorPpm"
-          fill="#2f5d7c"
-          shape="circle"
-          isAnimationActive={false}
+      <div
+        className="chart-plot"
+        role="img"
+        aria-label={`Error at ${formatHzShort(f.frequencyHz)} against check date, with the fitted drift and its band${f.projectedExitDate ? `; projected to leave the tolerance on ${f.projectedExitDate}` : ''}`}
+      >
+        <ComposedChart
+          accessibilityLayer={false}
+          width={width}
+          height={340}
+          margin={{ top: 8, right: 24, bottom: 28, left: 18 }}
         >
-          <ErrorBar dataKey="uPpm" direction="y" width={4} stroke="#2f5d7c" isAnimationActive={false} />
-        </Scatter>
-        <Tooltip content={<TrendTip />} />
-        <Legend verticalAlign="top" height={30} />
-      </ComposedChart>
+          <CartesianGrid strokeDasharray="2 4" stroke="#9aa3ab" strokeOpacity={0.45} />
+          <XAxis
+            type="number"
+            dataKey="t"
+            domain={[x0, x1]}
+            allowDataOverflow
+            ticks={ticks}
+            tickFormatter={(v: number) => String(yearOf(v))}
+            label={{ value: 'check date / year', position: 'insideBottom', offset: -16 }}
+          />
+          <YAxis
+            type="number"
+            domain={[-yMax, yMax]}
+            allowDataOverflow
+            width={64}
+            label={{ value: 'error / ppm', angle: -90, position: 'insideLeft', offset: 0, dy: 30 }}
+          />
+          <Area
+            data={band}
+            dataKey="band"
+            name="95 % prediction of the next check"
+            stroke="none"
+            fill="#c9a66b"
+            fillOpacity={0.3}
+            activeDot={false}
+            isAnimationActive={false}
+            legendType="rect"
+          />
+          <Line
+            data={band}
+            dataKey="predictedPpm"
+            name="fitted drift"
+            stroke="#8a6a2f"
+            strokeDasharray="4 3"
+            dot={false}
+            activeDot={false}
+            isAnimationActive={false}
+          />
+          <ReferenceLine
+            y={tol}
+            stroke="#8a4b45"
+            strokeWidth={1.5}
+            label={{ value: `+${tol.toFixed(0)} ppm tolerance`, position: 'insideTopLeft', fontSize: 12 }}
+          />
+          <ReferenceLine
+            y={-tol}
+            stroke="#8a4b45"
+            strokeWidth={1.5}
+            label={{ value: `−${tol.toFixed(0)} ppm tolerance`, position: 'insideBottomLeft', fontSize: 12 }}
+          />
+          <ReferenceLine y={0} stroke="#56606b" />
+          {dueMs !== null && (
+            <ReferenceLine
+              x={dueMs}
+              stroke="#2f5d7c"
+              strokeDasharray="2 3"
+              label={{ value: 'due', position: 'insideTopRight', offset: 8, fontSize: 12 }}
+            />
+          )}
+          {exitMs !== null && (
+            <ReferenceLine
+              x={exitMs}
+              stroke="#8a4b45"
+              strokeDasharray="6 3"
+              label={{
+                // The date is in the caption: a long label here would cross the due line.
+                value: '⚠ exit',
+                position: 'insideBottomRight',
+                offset: 10,
+                fontSize: 12,
+              }}
+            />
+          )}
+          <Scatter
+            name="as-found error ± U"
+            data={points}
+            dataKey="errorPpm"
+            fill="#2f5d7c"
+            shape="circle"
+            isAnimationActive={false}
+          >
+            <ErrorBar dataKey="uPpm" direction="y" width={4} stroke="#2f5d7c" isAnimationActive={false} />
+          </Scatter>
+          <Tooltip content={<TrendTip />} />
+          <Legend verticalAlign="top" height={30} />
+        </ComposedChart>
+      </div>
       <figcaption className="chart-caption" data-testid="trend-caption">
         At {formatHzShort(f.frequencyHz)}: error of each check against its date, ppm, with bars of ±U (about
         95 %). Shaded: where the next check is expected with 95 % probability (NIST/SEMATECH e-Handbook
@@ -293,6 +305,14 @@ function DriftChart({ trend }: { trend: TrendReport }) {
           </span>
         )}
       </figcaption>
+      <ChartData
+        name={'Error against time'}
+        table={{
+          caption: `Error at ${formatHzShort(f.frequencyHz)} by check date`,
+          columns: ['Check date', 'Error / ppm', 'U / ppm', 'Tolerance / ppm'],
+          rows: f.history.map((o) => [o.date, cell(o.errorPpm, 1), cell(o.uPpm, 1), cell(tol, 1)]),
+        }}
+      />
     </figure>
   );
 }

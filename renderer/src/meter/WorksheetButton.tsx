@@ -33,8 +33,9 @@ export function WorksheetButton({ assetId }: { assetId: string }) {
       <button
         type="button"
         className="button"
-        disabled={state.kind === 'busy'}
+        aria-disabled={state.kind === 'busy'}
         onClick={() => {
+          if (state.kind === 'busy') return;
           setState({ kind: 'busy' });
           api
             .worksheet(assetId)

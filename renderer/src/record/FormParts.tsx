@@ -77,11 +77,14 @@ export function NumberField({
   unit,
   value,
   onChange,
+  field,
 }: {
   label: string;
   unit: string;
   value: string;
   onChange: (v: string) => void;
+  /** The field's path in the check document, so a refusal can point at this box. */
+  field?: string;
 }) {
   const id = useId();
   return (
@@ -95,6 +98,7 @@ export function NumberField({
           type="text"
           inputMode="decimal"
           className="num-input"
+          data-field={field}
           value={value}
           onChange={(e) => onChange(e.target.value)}
         />
@@ -151,11 +155,20 @@ export function Review({
   );
 }
 
-export function RecordProblems({ state }: { state: Extract<RecordState, { kind: 'failed' }> }) {
+/** The id of the message about the k-th problem of a refusal. */
+export const problemId = (base: string, k: number) => `${base}-problem-${k}`;
+
+export function RecordProblems({
+  state,
+  idBase,
+}: {
+  state: Extract<RecordState, { kind: 'failed' }>;
+  idBase: string;
+}) {
   const words = (field: string) =>
     field.replace(/^points\[(\d+)\]/, (_, n: string) => `Point ${Number(n) + 1}`);
   return (
-    <div className="problems" role="alert">
+    <div className="problems" role="alert" id={idBase}>
       <p>
         <strong>
           <span aria-hidden="true">✗ </span>Not recorded; nothing was written.
@@ -165,7 +178,7 @@ export function RecordProblems({ state }: { state: Extract<RecordState, { kind: 
       {state.issues.length > 0 && (
         <ul>
           {state.issues.map((i, k) => (
-            <li key={k}>
+            <li key={k} id={problemId(idBase, k)}>
               <strong>{words(i.field)}</strong>: {i.message.replace(`${i.field}: `, '')}
             </li>
           ))}

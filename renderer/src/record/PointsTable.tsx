@@ -138,6 +138,7 @@ export function PointsTable({
                     <input
                       type="text"
                       className="ref-input"
+                      data-field={`points[${i}].reference`}
                       aria-label={`Reference frequency of point ${i + 1}, with unit`}
                       value={p.reference}
                       onChange={(e) => setPoint(i, (q) => ({ ...q, reference: e.target.value }))}
@@ -167,6 +168,7 @@ export function PointsTable({
                           inputMode="decimal"
                           className="num-input reading"
                           data-entry
+                          data-field={dir === 'up' && k === 0 ? `points[${i}].readings` : undefined}
                           aria-label={`${name}, ${dir} reading ${k + 1} in ${unit}`}
                           value={p[dir][k] ?? ''}
                           onKeyDown={nextOnEnter}
@@ -185,6 +187,7 @@ export function PointsTable({
                       type="text"
                       inputMode="decimal"
                       className="num-input dip"
+                      data-field={`points[${i}].dipDepthDb`}
                       data-entry
                       aria-label={`${name}, dip depth in dB`}
                       value={p.dipDepthDb}

@@ -4,12 +4,13 @@
 // recorded. The exchange document is saved as a draft as it is typed: closing the window loses
 // nothing, and the draft reopens from the register's "Record a check" view.
 import { format as formatDate } from 'date-fns';
-import { useCallback, useEffect, useId, useState } from 'react';
+import { useCallback, useEffect, useId, useRef, useState } from 'react';
 import type { LabApi, LabSettings, Meter, Person, RegisterRow, Standard } from '../../../app/api/contract';
 import type { DraftSummary } from '../../../app/api/contract-drafts';
 import type { FieldIssue } from '../../../app/api/errors';
 import type { CheckDocumentInput } from '../../../app/api/schemas';
 import { useLab } from '../lab/LabContext';
+import { markProblems, useAnnounce } from '../shared/a11y';
 import { Cautions } from '../shared/Cautions';
 import { STATE_LABEL, formatBand, formatPower } from '../shared/format';
 import { href } from '../shared/routes';
@@ -27,7 +28,15 @@ import {
   toDocument,
 } from './checkForm';
 import type { CheckForm } from './checkForm';
-import { DraftBar, DraftList, NumberField, RecordProblems, Review, perDirection } from './FormParts';
+import {
+  DraftBar,
+  DraftList,
+  NumberField,
+  RecordProblems,
+  Review,
+  perDirection,
+  problemId,
+} from './FormParts';
 import type { RecordState } from './FormParts';
 import type { Judged } from './useLiveJudgement';
 import { PointsTable } from './PointsTable';
@@ -120,6 +129,9 @@ function CheckEditor({ setup }: { setup: Setup }) {
   const unit = readingUnit(meter ?? undefined);
   const draft = useDraftAutosave(JSON.stringify(toDocument(form, unit, 'draft')), setup.draftId);
   const { touch } = draft;
+  const announce = useAnnounce();
+  const formRef = useRef<HTMLFormElement>(null);
+  const problemsId = useId();
 
   /** Every edit goes through here, so a draft is saved only once the technician typed something. */
   const edit = useCallback(
@@ -155,10 +167,13 @@ function CheckEditor({ setup }: { setup: Setup }) {
 
   // --- recording ------------------------------------------------------------------------------
   async function record() {
+    // The button stays focusable while busy (aria-disabled): a second press does nothing.
+    if (recordState.kind === 'busy') return;
     setRecordState({ kind: 'busy' });
     try {
       const rec = await api.recordCheck(toDocument(form, unit, 'record') as unknown as CheckDocumentInput);
       await draft.finish();
+      announce(`Check ${rec.checkId} recorded for ${form.meter}. Sign it on its page.`);
       // Signing and issuing follow on the check's own page.
       window.location.hash = href.check(rec.checkId);
     } catch (e) {
@@ -172,6 +187,17 @@ function CheckEditor({ setup }: { setup: Setup }) {
     window.location.hash = href.register();
   }
 
+  // A refusal marks the fields it names and moves focus to the first (or to the message).
+  useEffect(() => {
+    const root = formRef.current;
+    if (recordState.kind !== 'failed' || !root) return;
+    return markProblems(
+      root,
+      recordState.issues.map((i, k) => ({ field: i.field, messageId: problemId(problemsId, k) })),
+      root.ownerDocument.getElementById(problemsId),
+    );
+  }, [recordState, problemsId]);
+
   const meterSelectId = useId();
   const meterRows = setup.meters.filter((m) => m.state !== 'withdrawn' || m.assetId === form.meter);
   const verdicts = form.points
@@ -180,6 +206,7 @@ function CheckEditor({ setup }: { setup: Setup }) {
 
   return (
     <form
+      ref={formRef}
       className="check-form"
       onSubmit={(e) => {
         e.preventDefault();
@@ -203,9 +230,9 @@ function CheckEditor({ setup }: { setup: Setup }) {
             <label htmlFor={meterSelectId}>Meter</label>
             <select
               id={meterSelectId}
+              data-field="meter"
               value={form.meter}
               onChange={(e) => void chooseMeter(e.target.value)}
-              autoFocus={form.meter === ''}
               required
             >
               <option value="">Choose a meter…</option>
@@ -223,19 +250,22 @@ function CheckEditor({ setup }: { setup: Setup }) {
               className="date-input"
               inputMode="numeric"
               placeholder="YYYY-MM-DD"
+              data-field="date"
               aria-invalid={!ISO_DATE.test(form.date)}
+              aria-describedby={ISO_DATE.test(form.date) ? undefined : `${meterSelectId}-date`}
               value={form.date}
               onChange={(e) => edit((f) => ({ ...f, date: e.target.value.trim() }))}
             />
           </label>
           {!ISO_DATE.test(form.date) && (
-            <p className="field-problem" role="status">
+            <p className="field-problem" role="status" id={`${meterSelectId}-date`}>
               <span aria-hidden="true">✗ </span>write the date as YYYY-MM-DD, e.g. {localToday()}
             </p>
           )}
           <label className="field">
             <span>Performed by</span>
             <select
+              data-field="performer"
               value={form.performer}
               onChange={(e) => edit((f) => ({ ...f, performer: e.target.value }))}
               required
@@ -279,6 +309,7 @@ function CheckEditor({ setup }: { setup: Setup }) {
                   <input
                     type="checkbox"
                     checked={picked}
+                    data-field={s.assetId === setup.standards[0]?.assetId ? 'standards' : undefined}
                     disabled={!a.available && !picked}
                     onChange={(e) =>
                       edit((f) => ({
@@ -318,18 +349,21 @@ function CheckEditor({ setup }: { setup: Setup }) {
         <div className="row">
           <NumberField
             label="Temperature"
+            field="conditions.temperatureC"
             unit="°C"
             value={form.temperatureC}
             onChange={(v) => edit((f) => ({ ...f, temperatureC: v }))}
           />
           <NumberField
             label="Pressure"
+            field="conditions.pressureHpa"
             unit="hPa"
             value={form.pressureHpa}
             onChange={(v) => edit((f) => ({ ...f, pressureHpa: v }))}
           />
           <NumberField
             label="Relative humidity"
+            field="conditions.humidityPct"
             unit="%RH"
             value={form.humidityPct}
             onChange={(v) => edit((f) => ({ ...f, humidityPct: v }))}
@@ -398,11 +432,11 @@ function CheckEditor({ setup }: { setup: Setup }) {
         </label>
         <Review form={form} verdicts={verdicts.map((v) => v.result)} lab={setup.lab} />
         <div className="actions">
-          <button type="submit" className="button primary" disabled={recordState.kind === 'busy'}>
+          <button type="submit" className="button primary" aria-disabled={recordState.kind === 'busy'}>
             {recordState.kind === 'busy' ? 'Recording…' : 'Record the check'}
           </button>
         </div>
-        {recordState.kind === 'failed' && <RecordProblems state={recordState} />}
+        {recordState.kind === 'failed' && <RecordProblems state={recordState} idBase={problemsId} />}
       </fieldset>
       <Cautions />
     </form>

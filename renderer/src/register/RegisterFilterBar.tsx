@@ -3,6 +3,7 @@
 // and read correctly to a screen reader. A frequency that does not parse is named beside its
 // box with the engine's own words and is not applied.
 import { useId } from 'react';
+import { useAnnounce } from '../shared/a11y';
 import type { Construction, MeterState } from '../../../app/engine/model';
 import { STATE_LABEL, SOON_DAYS } from '../shared/format';
 import { NO_FILTERS, filtersActive, parseCoverFrequency } from './registerFilters';
@@ -29,6 +30,7 @@ export function RegisterFilterBar({
   flagsReady: boolean;
 }) {
   const id = useId();
+  const announce = useAnnounce();
   const set = <K extends keyof RegisterFilters>(key: K, value: RegisterFilters[K]) =>
     onChange({ ...filters, [key]: value });
   const freq = parseCoverFrequency(filters.frequency);
@@ -124,8 +126,13 @@ export function RegisterFilterBar({
       <button
         type="button"
         className="button"
-        disabled={!filtersActive(filters)}
-        onClick={() => onChange(NO_FILTERS)}
+        aria-disabled={!filtersActive(filters)}
+        onClick={() => {
+          // Stays focusable once the filters are clear (aria-disabled), so focus is not dropped.
+          if (!filtersActive(filters)) return;
+          onChange(NO_FILTERS);
+          announce('Filters cleared: every meter is shown.');
+        }}
       >
         Clear filters
       </button>

@@ -58,7 +58,7 @@ export function RegisterPage() {
 
       <Cautions />
 
-      <main>
+      <div>
         {load.kind === 'loading' && <p className="status">Loading the register…</p>}
         {load.kind === 'failed' && (
           <p className="status error" role="alert">
@@ -95,7 +95,7 @@ export function RegisterPage() {
             {coverageLoad.kind === 'ready' && <CoverageStrip report={coverageLoad.value} rows={load.rows} />}
           </>
         )}
-      </main>
+      </div>
 
       <footer className="footnote">
         Dates are YYYY-MM-DD. Days to due are counted from today on the lab service’s clock; d = days. Flags

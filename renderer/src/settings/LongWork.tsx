@@ -122,7 +122,7 @@ export function ImportHistory({ checksPerChunk = CHECKS_PER_PIECE }: { checksPer
           <button
             type="button"
             className="button"
-            disabled={progress.stopping}
+            aria-disabled={progress.stopping}
             onClick={() => {
               stop.current = true;
               setProgress((p) => (p.kind === 'running' ? { ...p, stopping: true } : p));
@@ -168,8 +168,8 @@ export function IntegrityCheck({ now = () => Date.now() }: { now?: () => number 
         <button
           type="button"
           className="button"
-          disabled={state.kind === 'running'}
-          onClick={() => void run()}
+          aria-disabled={state.kind === 'running'}
+          onClick={() => state.kind !== 'running' && void run()}
         >
           Check the lab file
         </button>
@@ -296,14 +296,19 @@ export function IssueCertificates({ onIssued }: { onIssued: () => void }) {
         one under way finish.
       </p>
       <div className="actions">
-        <button type="button" className="button" disabled={running} onClick={() => void run()}>
+        <button
+          type="button"
+          className="button"
+          aria-disabled={running}
+          onClick={() => !running && void run()}
+        >
           Issue the missing certificates
         </button>
         {running && (
           <button
             type="button"
             className="button"
-            disabled={progress.stopping}
+            aria-disabled={progress.stopping}
             onClick={() => {
               stop.current = true;
               setProgress((p) => (p.kind === 'running' ? { ...p, stopping: true } : p));

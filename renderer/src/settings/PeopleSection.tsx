@@ -1,12 +1,13 @@
 // The lab's people and their signing keys, in the settings: who may perform, review or administer,
 // and who can sign. A key is made here with a passphrase typed twice; the passphrase seals the key
 // and is never stored, shown or sent anywhere but to the one enrolment call.
-import { useId, useState } from 'react';
+import { useEffect, useId, useRef, useState } from 'react';
 import type { LabApi, Person } from '../../../app/api/contract';
 import type { Signer } from '../../../app/api/contract-records';
 import type { FieldIssue } from '../../../app/api/errors';
 import { messageOf, useLoad } from '../shared/useLoad';
 import { useLab } from '../lab/LabContext';
+import { focusQuietly, markProblems, useAnnounce } from '../shared/a11y';
 
 /** As the service requires for a new key (app/signing/keys.ts). */
 const MIN_PASSPHRASE = 10;
@@ -98,6 +99,8 @@ function AddPerson({ onDone }: { onDone: () => void }) {
 
   async function submit(e: React.FormEvent) {
     e.preventDefault();
+    // Busy buttons keep focus (aria-disabled): a second press does nothing.
+    if (status.kind === 'busy') return;
     setStatus({ kind: 'busy' });
     try {
       const p = await api.createPerson({ name, role });
@@ -129,7 +132,7 @@ function AddPerson({ onDone }: { onDone: () => void }) {
         </div>
       </div>
       <div className="actions">
-        <button type="submit" className="button" disabled={status.kind === 'busy'}>
+        <button type="submit" className="button" aria-disabled={status.kind === 'busy'}>
           Add the person
         </button>
       </div>
@@ -152,10 +155,45 @@ function EnrolKey(props: { people: Person[]; signers: Signer[]; onDone: () => vo
   const [status, setStatus] = useState<Status>({ kind: 'idle' });
   const tooShort = [...passphrase].length < MIN_PASSPHRASE;
   const mismatch = again !== '' && again !== passphrase;
+  const statusId = useId();
+  const formRef = useRef<HTMLFormElement>(null);
+  const announce = useAnnounce();
+
+  // A refusal marks the boxes it names and focuses the first (or the message).
+  useEffect(() => {
+    const root = formRef.current;
+    if (status.kind !== 'failed' || !root) return;
+    return markProblems(
+      root,
+      status.issues.map((i) => ({ field: i.field, messageId: statusId })),
+      root.ownerDocument.getElementById(statusId),
+    );
+  }, [status, statusId]);
 
   async function submit(e: React.FormEvent) {
     e.preventDefault();
-    if (mismatch) return;
+    if (status.kind === 'busy' || mismatch) return;
+    if (who === '' || tooShort || again !== passphrase) {
+      const issues: FieldIssue[] = [];
+      if (who === '')
+        issues.push({ field: 'person', value: '', expected: 'a person', message: 'choose the person' });
+      if (tooShort)
+        issues.push({
+          field: 'passphrase',
+          value: '',
+          expected: `at least ${MIN_PASSPHRASE} characters`,
+          message: `the passphrase needs at least ${MIN_PASSPHRASE} characters`,
+        });
+      else if (again !== passphrase)
+        issues.push({
+          field: 'again',
+          value: '',
+          expected: 'the same passphrase',
+          message: 'type the passphrase again',
+        });
+      setStatus({ kind: 'failed', message: '', issues });
+      return;
+    }
     setStatus({ kind: 'busy' });
     try {
       const s = await api.enrolSigner({ name: who, passphrase });
@@ -164,6 +202,13 @@ function EnrolKey(props: { people: Person[]; signers: Signer[]; onDone: () => vo
         text: `✓ ${s.person.name} can sign; key ${s.keyFingerprint.slice(0, 16)}….`,
       });
       setWho('');
+      announce(`${s.person.name} can now sign.`);
+      // With everyone holding a key the form goes: focus then moves to the section's heading.
+      const doc = formRef.current?.ownerDocument;
+      setTimeout(() => {
+        if (doc && (!doc.activeElement || doc.activeElement === doc.body))
+          focusQuietly(doc.querySelector<HTMLElement>('.enrol-key h3'));
+      }, 0);
       onDone();
     } catch (err) {
       setStatus(failed(err));
@@ -176,18 +221,24 @@ function EnrolKey(props: { people: Person[]; signers: Signer[]; onDone: () => vo
 
   if (candidates.length === 0)
     return (
-      <div className="subform">
+      <div className="subform enrol-key">
         <h3>Give a signing key</h3>
         <p className="muted">Everyone listed has a signing key. Add a person first to give another.</p>
       </div>
     );
   return (
-    <form className="subform" onSubmit={(e) => void submit(e)} noValidate aria-label="Give a signing key">
+    <form
+      ref={formRef}
+      className="subform enrol-key"
+      onSubmit={(e) => void submit(e)}
+      noValidate
+      aria-label="Give a signing key"
+    >
       <h3>Give a signing key</h3>
       <div className="row">
         <div className="field">
           <label htmlFor={whoId}>Person</label>
-          <select id={whoId} value={who} onChange={(e) => setWho(e.target.value)}>
+          <select id={whoId} data-field="person" value={who} onChange={(e) => setWho(e.target.value)}>
             <option value="">Choose…</option>
             {candidates.map((p) => (
               <option key={p.id} value={p.name}>
@@ -200,6 +251,7 @@ function EnrolKey(props: { people: Person[]; signers: Signer[]; onDone: () => vo
           <label htmlFor={passId}>Passphrase (at least {MIN_PASSPHRASE} characters)</label>
           <input
             id={passId}
+            data-field="passphrase"
             type="password"
             autoComplete="new-password"
             value={passphrase}
@@ -211,6 +263,7 @@ function EnrolKey(props: { people: Person[]; signers: Signer[]; onDone: () => vo
           <label htmlFor={againId}>Passphrase again</label>
           <input
             id={againId}
+            data-field="again"
             type="password"
             autoComplete="new-password"
             value={again}
@@ -229,15 +282,11 @@ function EnrolKey(props: { people: Person[]; signers: Signer[]; onDone: () => vo
         passphrase cannot be recovered.
       </p>
       <div className="actions">
-        <button
-          type="submit"
-          className="button"
-          disabled={status.kind === 'busy' || who === '' || tooShort || again !== passphrase}
-        >
+        <button type="submit" className="button" aria-disabled={status.kind === 'busy'}>
           Make the signing key
         </button>
       </div>
-      <StatusLine status={status} verb="No key made" />
+      <StatusLine status={status} verb="No key made" id={statusId} />
     </form>
   );
 }
@@ -246,7 +295,7 @@ function failed(err: unknown): Status {
   return { kind: 'failed', message: messageOf(err), issues: (err as { issues?: FieldIssue[] }).issues ?? [] };
 }
 
-function StatusLine({ status, verb }: { status: Status; verb: string }) {
+function StatusLine({ status, verb, id }: { status: Status; verb: string; id?: string }) {
   if (status.kind === 'busy') return <p className="status">Working…</p>;
   if (status.kind === 'done')
     return (
@@ -256,7 +305,7 @@ function StatusLine({ status, verb }: { status: Status; verb: string }) {
     );
   if (status.kind === 'failed')
     return (
-      <p role="alert" className="status error">
+      <p role="alert" className="status error" id={id}>
         <strong>✗ {verb}; nothing was changed.</strong>{' '}
         {status.issues.length > 0 ? status.issues.map((i) => i.message).join('; ') : status.message}
       </p>

@@ -135,6 +135,8 @@ function SettingsForm({ initial }: { initial: LabSettings }) {
 
   async function submit(e: React.FormEvent) {
     e.preventDefault();
+    // The button keeps focus while busy (aria-disabled): a second press does nothing.
+    if (status.kind === 'busy') return;
     setStatus({ kind: 'busy' });
     try {
       const next = await api.updateLab(toSettingsInput(f, saved) as never);
@@ -215,7 +217,7 @@ function SettingsForm({ initial }: { initial: LabSettings }) {
       </fieldset>
 
       <div className="actions">
-        <button type="submit" className="button primary" disabled={status.kind === 'busy'}>
+        <button type="submit" className="button primary" aria-disabled={status.kind === 'busy'}>
           Save the settings
         </button>
         <span role="status" className="status">

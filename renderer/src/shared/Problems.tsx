@@ -6,12 +6,15 @@ import { messageForPeople } from '../../../app/model/field-labels';
 export function Problems({
   verb,
   state,
+  id,
 }: {
   verb: string;
   state: { message: string; issues: FieldIssue[] };
+  /** For aria-describedby on the fields it names. */
+  id?: string;
 }) {
   return (
-    <div className="problems" role="alert">
+    <div className="problems" role="alert" id={id}>
       <p>
         <strong>✗ {verb}; nothing was changed.</strong>{' '}
         {state.issues.length === 0 && messageForPeople(state.message)}

@@ -1,12 +1,13 @@
 // Fit for use: type a frequency, see every meter whose band covers it and whether each may be
 // used today, and for the one chosen the correction to apply and the uncertainty of a
 // corrected reading there. Answers come from the fitForUse operation.
-import { useEffect, useId, useState } from 'react';
+import { useEffect, useId, useRef, useState } from 'react';
 import type { UseAnswer, UseReport } from '../../../app/api/contract-history';
 import { formatDays, formatHz, formatPpm } from '../shared/format';
 import { href } from '../shared/routes';
 import { messageOf } from '../shared/useLoad';
 import { useLab } from '../lab/LabContext';
+import { useAnnounce } from '../shared/a11y';
 import { LogUse } from './LogUse';
 import './use.css';
 
@@ -22,20 +23,33 @@ export function FitForUsePage() {
   const [frequency, setFrequency] = useState('');
   const [ask, setAsk] = useState<Ask>({ kind: 'idle' });
   const [chosen, setChosen] = useState<string | null>(null);
+  const announce = useAnnounce();
+  const inputRef = useRef<HTMLInputElement>(null);
+  const problemId = `${id}-problem`;
   useEffect(() => {
     document.title = 'Fit for use · Dipledger';
   }, []);
 
   async function submit(e: React.FormEvent) {
     e.preventDefault();
+    // Ask stays focusable while busy (aria-disabled): a second press waits for the first answer.
+    if (ask.kind === 'busy') return;
     setAsk({ kind: 'busy' });
     setChosen(null);
     try {
       const report = await api.fitForUse({ frequency: frequency.trim() });
       setAsk({ kind: 'ready', report });
       setChosen(report.answers.find((a) => a.fit)?.assetId ?? null);
+      const fit = report.answers.filter((a) => a.fit).length;
+      announce(
+        report.answers.length === 0
+          ? 'No meter of the lab covers that frequency.'
+          : `${report.answers.length} meters cover ${formatHz(report.frequencyHz, 4)}; ${fit} may be used.`,
+      );
     } catch (err) {
       setAsk({ kind: 'failed', message: messageOf(err) });
+      // The field stays focused and is marked; the message is read as its description.
+      inputRef.current?.focus();
     }
   }
 
@@ -51,18 +65,20 @@ export function FitForUsePage() {
         <label htmlFor={id}>Frequency, with its unit</label>
         <input
           id={id}
+          ref={inputRef}
           type="text"
-          autoFocus
           placeholder="e.g. 9.375 GHz"
+          aria-invalid={ask.kind === 'failed'}
+          aria-describedby={ask.kind === 'failed' ? problemId : undefined}
           value={frequency}
           onChange={(e) => setFrequency(e.target.value)}
         />
-        <button type="submit" className="button primary" disabled={ask.kind === 'busy'}>
+        <button type="submit" className="button primary" aria-disabled={ask.kind === 'busy'}>
           Ask
         </button>
       </form>
       {ask.kind === 'failed' && (
-        <p className="status error" role="alert">
+        <p className="status error" role="alert" id={problemId}>
           <span aria-hidden="true">✗ </span>
           {ask.message}
         </p>
@@ -164,7 +180,7 @@ function Answers({
                     aria-pressed={a.assetId === chosen}
                     onClick={() => onChoose(a.assetId)}
                   >
-                    details
+                    details<span className="visually-hidden"> of {a.assetId}</span>
                   </button>
                 </td>
               </tr>
