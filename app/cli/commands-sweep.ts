@@ -94,7 +94,7 @@ export const sweepCommands: CommandGroup = {
     step: { type: 'string' },
   },
   commands: {
-    async fit(ctx) {
+    fit(ctx) {
       const file = ctx.arg('FILE');
       const text = readText(file, ctx.io.cwd, 'FILE');
       const level = ctx.values.level as string | undefined;
@@ -154,7 +154,7 @@ export const sweepCommands: CommandGroup = {
         for (const n of r.report.notes) lines.push(`note: ${n}`);
         return lines.join('\n');
       });
-      return 0;
+      return Promise.resolve(0);
     },
 
     async chart(ctx) {

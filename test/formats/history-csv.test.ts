@@ -42,7 +42,7 @@ describe('history CSV writer', () => {
   it('writes the header and one row per reading, read back as written', () => {
     const text = writeHistoryCsv([{ check, readingUnit: 'div' }]);
     expect(text.endsWith('\r\n')).toBe(true);
-    const rows = parse(text) as string[][];
+    const rows: string[][] = parse(text);
     expect(rows[0]).toEqual([...CSV_COLUMNS]);
     expect(rows).toHaveLength(3);
     const row = Object.fromEntries(CSV_COLUMNS.map((c, i) => [c, rows[1]![i]]));
