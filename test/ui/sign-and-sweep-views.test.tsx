@@ -360,3 +360,49 @@ describe("the bench worksheet from a meter's page", () => {
     expect(asked).toEqual(['WM-003']);
   });
 });
+
+describe("a check's page, re-issuing a check-sheet", () => {
+  it('sends the reason for the replacement (the stored kind is "check-sheet")', async () => {
+    const b = checkBench();
+    b.view.record.state = 'signed';
+    b.view.effectiveRevision = b.view.record.revision;
+    const sheets: unknown[] = [];
+    const existing: IssuedDocument = {
+      kind: 'check-sheet',
+      number: 'S-2026-0003',
+      revision: 1,
+      meterAssetId: b.view.record.meterAssetId,
+      checkId: b.view.record.checkId,
+      checkRevision: b.view.record.revision,
+      issuedAt: '2026-12-01T09:35:00.000Z',
+      issuedBy: 'local user',
+      sha256: '56'.repeat(32),
+      recordSha256: '78'.repeat(32),
+      recordName: 'record.json',
+      byteLength: 4,
+      pdfSigned: false,
+      intervalPrinted: false,
+      signatures: 1,
+      replaces: null,
+      replacedBy: null,
+    };
+    const api = {
+      ...b.api,
+      listDocuments: () => Promise.resolve([structuredClone(existing)]),
+      issueSheet: (input: Parameters<typeof b.api.issueSheet>[0]) => {
+        sheets.push(input);
+        return Promise.reject(new LabError('refused', 'stop here'));
+      },
+    };
+    render(
+      <LabProvider api={api}>
+        <CheckPage checkId={b.view.record.checkId} />
+      </LabProvider>,
+    );
+    const button = await screen.findByRole('button', { name: 'Issue a replacement check-sheet' });
+    type(screen.getByLabelText('Why a replacement (needed to issue a document again)'), 'smudged print');
+    fireEvent.click(button);
+    await screen.findByRole('alert');
+    expect(sheets).toEqual([{ checkId: b.view.record.checkId, replaceReason: 'smudged print' }]);
+  });
+});

@@ -300,7 +300,12 @@ function IssuePanel(props: { view: CheckRevisionView; documents: IssuedDocument[
     | { kind: 'failed'; message: string; issues: FieldIssue[] }
   >({ kind: 'idle' });
   const signed = view.effectiveRevision !== null;
-  const has = (k: IssueKind) => documents.some((d) => d.kind === k);
+  // The button's word and the stored kind differ: a sheet is stored as 'check-sheet'.
+  const STORED_KIND = { sheet: 'check-sheet', certificate: 'certificate' } as const satisfies Record<
+    IssueKind,
+    IssuedDocument['kind']
+  >;
+  const has = (k: IssueKind) => documents.some((d) => d.kind === STORED_KIND[k]);
 
   const announce = useAnnounce();
 
