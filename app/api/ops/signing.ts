@@ -29,6 +29,14 @@ import { signaturePayload } from '../../signing/payload';
 import { prepareCheck } from '../checks/prepare';
 import type { OpGroup, ServiceContext } from './context';
 import { requireLab } from './lookups';
+import {
+  LOCK_AFTER_FAILURES,
+  LOCK_MINUTES,
+  LOCKED_OUT,
+  recordRefusedAttempt,
+  signingLockedUntil,
+  WRONG_PASSPHRASE,
+} from './sign-attempts';
 import type { Person } from '../contract';
 import type { CheckRevisionView, RecordsApi, SignatureMeaning, Signer } from '../contract-records';
 import { comparable, diffValues } from '../records-diff';
@@ -324,10 +332,22 @@ export function signCheck(ctx: ServiceContext, input: Parameters<RecordsApi['sig
       'a person with a signing key',
       `person: ${person.name} has no signing key yet ("dipledger person add")`,
     );
-  planSignature(ctx, s.checkId, person, s.meaning);
-  // The passphrase is tried only after every cheaper refusal, and a wrong one writes nothing.
+  const planned = planSignature(ctx, s.checkId, person, s.meaning);
+  // A person with too many wrong passphrases lately is refused before the passphrase is tried.
+  const lockedUntil = signingLockedUntil(ctx, person.id);
+  if (lockedUntil) {
+    recordRefusedAttempt(ctx, person, s.checkId, planned.meaning, LOCKED_OUT);
+    throw new LabError(
+      'refused',
+      `${person.name} may not sign until ${lockedUntil}: ${LOCK_AFTER_FAILURES} wrong passphrases within ${LOCK_MINUTES} minutes; nothing was signed`,
+    );
+  }
+  // The passphrase is tried only after every cheaper refusal; a wrong one writes nothing but the
+  // refused attempt in the audit trail (who, which check and meaning, when, why; never the
+  // passphrase).
   const privateKey = unsealPrivateKey(key.sealed, passphrase);
-  if (!privateKey)
+  if (!privateKey) {
+    recordRefusedAttempt(ctx, person, s.checkId, planned.meaning, WRONG_PASSPHRASE);
     throw new LabError(
       'refused',
       `the passphrase does not open ${person.name}'s signing key: nothing was signed`,
@@ -340,6 +360,7 @@ export function signCheck(ctx: ServiceContext, input: Parameters<RecordsApi['sig
         },
       ],
     );
+  }
   let signed: { checkId: number; revision: number } | undefined;
   ctx.db.transaction(() => {
     // Planned again inside the write lock: another process may have signed meanwhile.
