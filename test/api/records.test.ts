@@ -131,7 +131,9 @@ describe('signing a check (21 CFR Part 11 11.50, 11.70, 11.200)', () => {
     const after = await lab.api.getCheckRevision({ checkId: rec.checkId });
     expect(after.signatures).toEqual([]);
     expect(after.record.state).toBe('draft');
-    expect(await countRows(lab)).toEqual(before);
+    // Nothing is signed; the refused attempt alone is written, to the audit trail.
+    expect(await countRows(lab)).toEqual({ ...before, audit: before.audit + 1 });
+    expect((await lab.api.listAudit({ limit: 1 }))[0]?.action).toBe('sign-refused');
   });
 
   it('never repeats a passphrase in a refusal', async () => {
