@@ -8,7 +8,7 @@
 // service's async wrapper adopts (Promise.resolve); the number is re-checked inside the single
 // write transaction, so two overlapping issues can never share a number.
 import { z } from 'zod';
-import { appendAudit } from '../../../db/queries/audit';
+import { appendAudit, auditHeadOf } from '../../../db/queries/audit';
 import { getCheck } from '../../../db/queries/checks';
 import {
   currentDocumentOfCheck,
@@ -261,6 +261,7 @@ function prepare(ctx: ServiceContext, kind: DocumentKind, input: z.output<typeof
         revision,
         issuedAt,
         issuedBy: ctx.actor,
+        auditHead: auditHeadOf(db),
         replaces: current
           ? {
               number: current.number,
