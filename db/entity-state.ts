@@ -114,6 +114,11 @@ export const ENTITY_KINDS: readonly EntityKind[] = [
     ],
   },
   {
+    entity: 'draft',
+    params: byInteger,
+    parts: [{ table: 'check_draft', all: 'SELECT t.id AS "~k", t.* FROM check_draft t', where: 't.id = ?' }],
+  },
+  {
     entity: 'document',
     params: (id) => {
       const m = /^(.+) revision ([1-9]\d{0,8})$/.exec(id);

@@ -22,6 +22,7 @@ import type { OpGroup, ServiceContext } from './context';
 import type { IntegrityProblem, IntegrityReport, RecordsApi } from '../contract-records';
 import { fingerprintOf, sha256Hex, verifyBytes } from '../records-signing';
 import { parseWith } from '../issues';
+import { summaryProblems } from '../history/summary-check';
 import { entityKey } from '../../../db/entity-state';
 import { anchorProblems, schemaProblems, stateProblems, type NewestState } from './integrity-state';
 
@@ -210,7 +211,11 @@ export function listAudit(ctx: ServiceContext, query: Parameters<RecordsApi['lis
 }
 
 export function verifyIntegrity(ctx: ServiceContext) {
-  return integrityReport(ctx.db);
+  const report = integrityReport(ctx.db);
+  const summaries = summaryProblems(ctx);
+  return summaries.length === 0
+    ? report
+    : { ...report, ok: false, problems: [...report.problems, ...summaries] };
 }
 
 export const auditOps = { listAudit, verifyIntegrity } satisfies OpGroup<'listAudit' | 'verifyIntegrity'>;

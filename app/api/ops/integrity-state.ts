@@ -27,6 +27,7 @@ const ENTITY_WORDS: Record<string, string> = {
   standard: 'standard',
   check: 'check',
   document: 'issued document',
+  draft: 'draft',
 };
 
 const named = (entity: string, id: string): string =>
