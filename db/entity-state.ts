@@ -201,8 +201,8 @@ export function allEntityDigests(db: Database.Database): {
     for (const part of kind.parts) {
       let lost = 0;
       for (const row of db.prepare(part.all).iterate() as IterableIterator<Row>) {
-        const key = row['~k'];
-        if (key === null || key === undefined) {
+        const key = row['~k'] as string | number | null;
+        if (key === null) {
           lost += 1;
           continue;
         }
