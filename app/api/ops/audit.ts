@@ -57,7 +57,7 @@ export function integrityReport(db: LabDb): IntegrityReport {
   for (const e of auditEntries(db)) {
     entries += 1;
     chain.add(e.hash);
-    if (e.entity === 'person-key') enrolled.set(e.entityId, e.afterJson ?? '');
+    if (e.entity === 'person-key' && e.action === 'create') enrolled.set(e.entityId, e.afterJson ?? '');
     if (e.stateSha256 !== null)
       newest.set(entityKey(e.entity, e.entityId), {
         entryId: e.id,
