@@ -78,7 +78,8 @@ usage: dipledger [--db FILE] [--json] COMMAND [ARGS]
   --json      machine-readable output in SI units (Hz, ppm, degC, hPa)
 
 Frequencies take units: 9.3GHz, "9300 MHz", 9.3e9. Exit codes: 0 ok, 1 not a pass
-where --require-pass asks, 2 bad input (nothing written).
+where --require-pass asks, 2 bad input (nothing written), 4 the lab file is busy with
+another write (nothing written; try again).
 Verdicts support, and never replace, the lab's quality system and accredited practice.`;
 
 export function usage(): string {
@@ -289,7 +290,7 @@ function report(e: unknown, io: CliIo, json: boolean): number {
       for (const i of e.issues.slice(1)) io.err(`  ${i.message}`);
       if (e.code === 'invalid-input') io.err('nothing was written.');
     }
-    return e.code === 'internal' ? 3 : 2;
+    return e.code === 'internal' ? 3 : e.code === 'busy' ? 4 : 2;
   }
   if (e instanceof StoreError) {
     io.err(`dipledger: ${e.message}`);
