@@ -1,7 +1,7 @@
 // The `dipledger` command: a thin shell over the LabApi. Parses arguments, calls one
 // operation, prints a table or JSON (SI units). Exit codes: 0 ok, 1 a verdict that is not a
 // pass where --require-pass asks, 2 bad input (nothing written), 3 an internal fault.
-import { readFileSync, writeFileSync } from 'node:fs';
+import { writeFileSync } from 'node:fs';
 import { homedir } from 'node:os';
 import path from 'node:path';
 import { parseArgs, type ParseArgsConfig } from 'node:util';
@@ -10,6 +10,7 @@ import { encodeJson } from '../model/json';
 import { openApi, type OpenedLab } from '../api/open';
 import { systemClock, fixedClock } from '../api/service';
 import { StoreError } from '../../db/store';
+import { readTextFile } from './read-text';
 import { formatFrequency } from '../engine';
 import { labFilePath } from '../../db/lab-file';
 import { createLabFile } from '../../sample-lab/load';
@@ -228,12 +229,7 @@ export async function runCli(argv: string[], io: CliIo): Promise<number> {
       }
       case 'import': {
         const file = arg('FILE.csv');
-        let text: string;
-        try {
-          text = readFileSync(path.resolve(io.cwd, file), 'utf8');
-        } catch {
-          throw LabError.field('FILE', file, 'a readable CSV file', `cannot read ${file}`);
-        }
+        const text = readTextFile(file, io.cwd);
         const r = await open().api.importCsv(text);
         print(
           r,
