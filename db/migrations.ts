@@ -2,11 +2,15 @@
 // list must only increase, and the version reached is stored in the file (PRAGMA user_version)
 // together with a row per applied migration.
 import { readFileSync } from 'node:fs';
+import type Database from 'better-sqlite3';
+import { writeBaseline } from './baseline';
 
 export interface Migration {
   version: number;
   name: string;
   sql: string;
+  /** Data work after the SQL, in the same transaction (`at`: when the migration runs). */
+  after?: (db: Database.Database, at: string) => void;
 }
 
 const FILES: ReadonlyArray<readonly [number, string]> = [
@@ -21,11 +25,17 @@ const FILES: ReadonlyArray<readonly [number, string]> = [
   [9, '0009_cheaper_writes.sql'],
   [10, '0010_document_keys.sql'],
   [11, '0011_meter_uses.sql'],
+  [12, '0012_entity_state.sql'],
 ];
+
+const AFTER: ReadonlyMap<number, NonNullable<Migration['after']>> = new Map([
+  [12, (db: Database.Database, at: string) => void writeBaseline(db, at)],
+]);
 
 function load(version: number, file: string): Migration {
   const sql = readFileSync(new URL(`./migrations/${file}`, import.meta.url), 'utf8');
-  return { version, name: file.replace(/^\d+_/, '').replace(/\.sql$/, ''), sql };
+  const after = AFTER.get(version);
+  return { version, name: file.replace(/^\d+_/, '').replace(/\.sql$/, ''), sql, ...(after ? { after } : {}) };
 }
 
 export const MIGRATIONS: readonly Migration[] = FILES.map(([v, f]) => load(v, f));

@@ -102,11 +102,13 @@ export function migrate(
   for (const m of migrations) {
     if (m.version <= current || m.version > target) continue;
     db.transaction(() => {
+      const at = new Date().toISOString();
       db.exec(m.sql);
+      m.after?.(db, at);
       db.prepare('INSERT INTO schema_migration (version, name, applied_at) VALUES (?, ?, ?)').run(
         m.version,
         m.name,
-        new Date().toISOString(),
+        at,
       );
       db.pragma(`user_version = ${m.version}`);
       db.pragma(`application_id = ${APPLICATION_ID}`);

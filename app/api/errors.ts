@@ -2,7 +2,7 @@
 // given and what was expected, in words a technician understands.
 import type { z } from 'zod';
 
-export type LabErrorCode = 'invalid-input' | 'not-found' | 'conflict' | 'refused' | 'internal';
+export type LabErrorCode = 'invalid-input' | 'not-found' | 'conflict' | 'refused' | 'busy' | 'internal';
 
 export interface FieldIssue {
   /** Dotted path of the field, e.g. "points[2].readings[0].value". */

@@ -7,6 +7,7 @@
 // Following an operation: recordCheck is ops/checks.ts recordCheck -> checks/prepare.ts
 // prepareCheck (validation and the engine) -> checks/write.ts writeCheck -> db/queries/check-write.ts
 // writeCheckRows (the SQL).
+import { BUSY_ATTEMPT_MS, isBusy, retryWhileBusy } from './busy';
 import type { LabDb } from '../../db/store';
 import { systemClock, type Clock } from './clock';
 import type { LabApi, OperationName } from './contract';
@@ -67,6 +68,9 @@ export function createLabService(db: LabDb, options: ServiceOptions = {}): LabAp
     actor: options.actor ?? 'local user',
     writerThreadMinChecks: options.writerThreadMinChecks ?? WRITER_THREAD_MIN_CHECKS,
   };
+  // One attempt at a busy file waits only briefly on SQLite's lock, which blocks the thread (the
+  // server's only one); the write is then tried again without blocking (busy.ts).
+  if (db.name !== ':memory:') db.pragma(`busy_timeout = ${BUSY_ATTEMPT_MS}`);
   const sync: Record<string, (...args: unknown[]) => unknown> = {};
   for (const op of Object.keys(OPERATIONS) as OperationName[]) {
     const fn = OPS[op] as (ctx: ServiceContext, ...args: unknown[]) => unknown;
@@ -98,6 +102,11 @@ function asyncApi(sync: SyncLabApi): LabApi {
   };
   for (const op of Object.keys(OPERATIONS) as OperationName[]) {
     const fn = sync[op] as (...args: unknown[]) => unknown;
+    /** A write refused because another connection holds the lab file's lock is tried again. */
+    const retryBusy = (e: unknown, args: unknown[]): Promise<unknown> => {
+      if (!isBusy(e)) return Promise.reject(e instanceof Error ? e : new Error(String(e)));
+      return retryWhileBusy(() => call(args).answer);
+    };
     /** The answer, and whether work on it goes on after this call returned. */
     const call = (args: unknown[]): { answer: Promise<unknown>; ongoing: boolean } => {
       try {
@@ -115,9 +124,9 @@ function asyncApi(sync: SyncLabApi): LabApi {
             if (!tail) {
               const { answer, ongoing } = call(args);
               if (ongoing) holdWritesUntil(answer);
-              return answer;
+              return ongoing ? answer : answer.catch((e: unknown) => retryBusy(e, args));
             }
-            const answer = tail.then(() => call(args).answer);
+            const answer = tail.then(() => retryWhileBusy(() => call(args).answer));
             holdWritesUntil(answer);
             return answer;
           }

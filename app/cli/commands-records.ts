@@ -113,6 +113,7 @@ export function integrityText(r: IntegrityReport): string {
     `SQLite integrity check: ${r.sqlite.join('; ')}`,
     `audit trail: ${r.auditEntries} entries; newest hash ${r.auditHead}`,
     `signatures checked: ${r.signaturesChecked}`,
+    `records compared with their newest audit entry: ${r.entitiesChecked ?? 0}; document anchors checked: ${r.anchorsChecked ?? 0}`,
   ];
   if (r.ok) lines.push('all records intact.');
   else {
@@ -138,7 +139,9 @@ export const recordsCommands: CommandGroup = {
   check CHECK [--revision N]         a check: revisions, what changed, standards, signatures
   audit [--meter REF] [--entity E] [--id ID] [--limit N]   the audit trail, newest first (a meter: its checks and documents too)
   quarantine|withdraw|reinstate REF --reason TEXT   change a meter's state (audited)
-  integrity                          SQLite check, audit chain, every signature (exit 1 if broken)
+  integrity                          SQLite check, audit chain, every signature, every record against
+                                     its newest audit entry, the schema (exit 1 if broken)
+  anchor                             the audit head: keep it outside the lab file to detect a rewritten trail
   backup FILE                        a consistent copy while the lab is in use
 `,
   options: {
@@ -237,6 +240,19 @@ export const recordsCommands: CommandGroup = {
     quarantine: (ctx) => changeState(ctx, 'quarantined'),
     withdraw: (ctx) => changeState(ctx, 'withdrawn'),
     reinstate: (ctx) => changeState(ctx, 'in-service'),
+    async anchor(ctx) {
+      const [newest] = await ctx.open().api.listAudit({ limit: 1 });
+      const head = newest?.hash ?? '0'.repeat(64);
+      ctx.print({ auditHead: head, entryId: newest?.id ?? null, at: newest?.at ?? null }, () =>
+        [
+          `audit head ${head}`,
+          newest ? `(audit entry ${newest.id}, ${newest.at})` : '(the trail is empty)',
+          'Keep it outside the lab file (a logbook, an e-mail to yourself): if it is ever missing from the',
+          'trail, entries were removed or the trail rewritten. Every issued document carries the head too.',
+        ].join('\n'),
+      );
+      return 0;
+    },
     async integrity(ctx) {
       let report: IntegrityReport;
       try {

@@ -1,6 +1,7 @@
 // `dipledger fit FILE` (every dip of a sweep with its figures), `dipledger chart REF` (a divisions
 // meter's dial chart) and `dipledger sweeps REF` (a meter's swept points over time). Thin over the
 // LabApi; the record command uses resolveSweepFiles to read trace files a document names.
+import { decodeTextFile } from './read-text';
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { LabError } from '../api/errors';
@@ -17,8 +18,9 @@ const MODELS = ['auto', 'complex', 'magnitude'] as const;
 
 function readText(file: string, cwd: string, field: string): string {
   try {
-    return readFileSync(path.resolve(cwd, file), 'utf8');
-  } catch {
+    return decodeTextFile(readFileSync(path.resolve(cwd, file)), file, field);
+  } catch (e) {
+    if (e instanceof LabError) throw e;
     throw LabError.field(field, file, 'a readable trace file', `${field}: cannot read ${file}`);
   }
 }

@@ -1,7 +1,6 @@
 // Text output of the CLI: tables with aligned numbers, verdict words, budgets; and the small
 // argument helpers every command shares.
-import { readFileSync } from 'node:fs';
-import path from 'node:path';
+import { readTextFile } from './read-text';
 import { LabError } from '../api/errors';
 import type { CheckRecord, RegisterRow } from '../api/contract';
 import { formatFrequency } from '../engine';
@@ -152,13 +151,7 @@ export function checkText(c: CheckRecord): string {
 }
 
 export function readJsonFile(file: string, cwd: string): unknown {
-  const full = path.resolve(cwd, file);
-  let text: string;
-  try {
-    text = readFileSync(full, 'utf8');
-  } catch {
-    throw LabError.field('FILE', file, 'a readable file', `cannot read ${file}`);
-  }
+  const text = readTextFile(file, cwd);
   try {
     return JSON.parse(text) as unknown;
   } catch (e) {

@@ -1,7 +1,7 @@
 // The `dipledger` command: a thin shell over the LabApi. Parses arguments, calls one
 // operation, prints a table or JSON (SI units). Exit codes: 0 ok, 1 a verdict that is not a
 // pass where --require-pass asks, 2 bad input (nothing written), 3 an internal fault.
-import { existsSync, readFileSync, writeFileSync } from 'node:fs';
+import { existsSync, writeFileSync } from 'node:fs';
 import { homedir } from 'node:os';
 import path from 'node:path';
 import { parseArgs, type ParseArgsConfig } from 'node:util';
@@ -12,6 +12,7 @@ import { decimal, machineValues } from '../model/quantity-format';
 import { openApi, type OpenedLab } from '../api/open';
 import { systemClock, fixedClock } from '../api/service';
 import { StoreError } from '../../db/store';
+import { readTextFile } from './read-text';
 import { formatFrequency } from '../engine';
 import { labFilePath } from '../../db/lab-file';
 import { createLabFile } from '../../sample-lab/load';
@@ -94,7 +95,8 @@ usage: dipledger [--db FILE] [--json] COMMAND [ARGS]
   --json      machine-readable output in SI units (Hz, ppm, degC, hPa)
 
 Frequencies take units: 9.3GHz, "9300 MHz", 9.3e9. Exit codes: 0 ok, 1 not a pass
-where --require-pass asks, 2 bad input (nothing written).
+where --require-pass asks, 2 bad input (nothing written), 4 the lab file is busy with
+another write (nothing written; try again).
 Verdicts support, and never replace, the lab's quality system and accredited practice.`;
 
 export function usage(): string {
@@ -287,12 +289,7 @@ export async function runCli(argv: string[], io: CliIo): Promise<number> {
       }
       case 'import': {
         const file = arg('FILE.csv');
-        let text: string;
-        try {
-          text = readFileSync(path.resolve(io.cwd, file), 'utf8');
-        } catch {
-          throw LabError.field('FILE', file, 'a readable CSV file', `cannot read ${file}`);
-        }
+        const text = readTextFile(file, io.cwd);
         const r = await open().api.importCsv(text);
         print(
           r,
@@ -370,7 +367,7 @@ function report(e: unknown, io: CliIo, json: boolean): number {
       for (const i of e.issues.slice(1)) io.err(`  ${messageForPeople(i.message, i.field)}`);
       if (e.code === 'invalid-input') io.err('nothing was written.');
     }
-    return e.code === 'internal' ? 3 : 2;
+    return e.code === 'internal' ? 3 : e.code === 'busy' ? 4 : 2;
   }
   if (e instanceof StoreError) {
     io.err(`dipledger: ${e.message}`);

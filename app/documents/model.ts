@@ -32,6 +32,9 @@ export interface IssueInfo {
   issuedBy: string;
   /** The document this one replaces, and why (7.8.8.1, 7.8.8.3). */
   replaces: { number: string; revision: number; issuedAt: string; reason: string } | null;
+  /** The hash of the newest audit entry when the document was issued (the lab file's trail
+   * anchored outside it: `integrity` checks it is still in the chain). Absent on older documents. */
+  auditHead?: string;
 }
 
 /** A standard used in the check with the certificate that was valid on the check date. */

@@ -88,8 +88,9 @@ export interface AuditEntryView {
 }
 
 export interface IntegrityProblem {
-  /** sqlite | audit | signature | key | lock */
-  kind: 'sqlite' | 'audit' | 'signature' | 'key' | 'lock';
+  /** sqlite | audit | signature | key | lock | entity (rows changed outside the program) |
+   * schema | anchor (an issued document's audit head missing from the chain) | summary */
+  kind: 'sqlite' | 'audit' | 'signature' | 'key' | 'lock' | 'entity' | 'schema' | 'anchor' | 'summary';
   /** The record it names, e.g. "check 12 revision 2" or "audit entry 40". */
   record: string;
   problem: string;
@@ -104,6 +105,10 @@ export interface IntegrityReport {
   /** Hash of the newest audit entry: note it outside the file to detect a rewritten chain. */
   auditHead: string;
   signaturesChecked: number;
+  /** Entities whose content was compared with their newest audit entry. */
+  entitiesChecked?: number;
+  /** Issued documents that carry an audit head, each checked against the chain. */
+  anchorsChecked?: number;
   /** Every problem, the first broken audit link first. */
   problems: IntegrityProblem[];
 }

@@ -50,6 +50,7 @@ const STATUS: Record<LabErrorCode, number> = {
   'not-found': 404,
   conflict: 409,
   refused: 422,
+  busy: 503,
   internal: 500,
 };
 

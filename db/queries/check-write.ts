@@ -24,12 +24,7 @@ export interface CheckWrite {
 
 /** Writes the check and returns its id. Call inside a transaction. */
 export function writeCheckRows(db: LabDb, w: CheckWrite): number {
-  const performerId =
-    w.performerId ??
-    (
-      findPersonByName(db, w.performerName) ??
-      insertPerson(db, { name: w.performerName, role: 'technician' }, w.at)
-    ).id;
+  const performerId = w.performerId ?? (findPersonByName(db, w.performerName) ?? addPerformer(db, w)).id;
   const checkId = insertCheck(db, { ...w.revision, performerId }, w.at);
   insertSweeps(db, checkId, w.sweeps);
   appendAudit(db, {
@@ -42,4 +37,20 @@ export function writeCheckRows(db: LabDb, w: CheckWrite): number {
     after: w.audit,
   });
   return checkId;
+}
+
+/** A performer new to the lab joins as a technician, with its own audit entry. */
+function addPerformer(db: LabDb, w: CheckWrite) {
+  const p = { name: w.performerName, role: 'technician' as const };
+  const person = insertPerson(db, p, w.at);
+  appendAudit(db, {
+    at: w.at,
+    actor: w.actor,
+    action: 'create',
+    entity: 'person',
+    entityId: String(person.id),
+    before: undefined,
+    after: p,
+  });
+  return person;
 }

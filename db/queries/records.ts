@@ -334,6 +334,7 @@ interface AuditRow {
   after_json: string | null;
   prev_hash: string;
   hash: string;
+  state_sha256?: string | null;
 }
 
 export interface StoredAuditEntry {
@@ -347,6 +348,8 @@ export interface StoredAuditEntry {
   afterJson: string | null;
   prevHash: string;
   hash: string;
+  /** Digest of the entity after the change (0010 on); null on entries written before. */
+  stateSha256: string | null;
 }
 
 const rowToAudit = (r: AuditRow): StoredAuditEntry => ({
@@ -360,6 +363,7 @@ const rowToAudit = (r: AuditRow): StoredAuditEntry => ({
   afterJson: r.after_json,
   prevHash: r.prev_hash,
   hash: r.hash,
+  stateSha256: r.state_sha256 ?? null,
 });
 
 function parseOrText(text: string | null): unknown {

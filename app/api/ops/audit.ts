@@ -22,6 +22,9 @@ import type { OpGroup, ServiceContext } from './context';
 import type { IntegrityProblem, IntegrityReport, RecordsApi } from '../contract-records';
 import { fingerprintOf, sha256Hex, verifyBytes } from '../../signing/keys';
 import { parseWith } from '../issues';
+import { summaryProblems } from '../history/summary-check';
+import { entityKey } from '../../../db/entity-state';
+import { anchorProblems, schemaProblems, stateProblems, type NewestState } from './integrity-state';
 
 const AuditQuerySchema = z.object({
   entity: z.string('expected an entity such as "check"').max(40).optional(),
@@ -49,9 +52,19 @@ export function integrityReport(db: LabDb): IntegrityReport {
   let entries = 0;
   let broken: { index: number; problem: IntegrityProblem } | undefined;
   const enrolled = new Map<string, string>();
+  const newest = new Map<string, NewestState>();
+  const chain = new Set<string>([GENESIS_HASH]);
   for (const e of auditEntries(db)) {
     entries += 1;
-    if (e.entity === 'person-key') enrolled.set(e.entityId, e.afterJson ?? '');
+    chain.add(e.hash);
+    if (e.entity === 'person-key' && e.action === 'create') enrolled.set(e.entityId, e.afterJson ?? '');
+    if (e.stateSha256 !== null)
+      newest.set(entityKey(e.entity, e.entityId), {
+        entryId: e.id,
+        at: e.at,
+        action: e.action,
+        stateSha256: e.stateSha256,
+      });
     if (broken) continue;
     const recomputed = auditHash(
       e.prevHash,
@@ -62,6 +75,7 @@ export function integrityReport(db: LabDb): IntegrityReport {
       e.entityId,
       e.beforeJson,
       e.afterJson,
+      e.stateSha256,
     );
     const problem =
       e.prevHash !== prev
@@ -86,6 +100,11 @@ export function integrityReport(db: LabDb): IntegrityReport {
     broken.problem.affects = `${broken.problem.affects} (${after} later entr${after === 1 ? 'y' : 'ies'}) can no longer be trusted through the chain`;
     problems.push(broken.problem);
   }
+  problems.push(...schemaProblems(db));
+  const state = stateProblems(db, newest);
+  problems.push(...state.problems);
+  const anchors = anchorProblems(db, chain);
+  problems.push(...anchors.problems);
 
   for (const k of allKeys(db)) {
     let problem: string | undefined;
@@ -180,6 +199,8 @@ export function integrityReport(db: LabDb): IntegrityReport {
     auditEntries: entries,
     auditHead: prev,
     signaturesChecked: checked,
+    entitiesChecked: state.entities,
+    anchorsChecked: anchors.anchored,
     problems,
   };
 }
@@ -190,7 +211,11 @@ export function listAudit(ctx: ServiceContext, query: Parameters<RecordsApi['lis
 }
 
 export function verifyIntegrity(ctx: ServiceContext) {
-  return integrityReport(ctx.db);
+  const report = integrityReport(ctx.db);
+  const summaries = summaryProblems(ctx);
+  return summaries.length === 0
+    ? report
+    : { ...report, ok: false, problems: [...report.problems, ...summaries] };
 }
 
 export const auditOps = { listAudit, verifyIntegrity } satisfies OpGroup<'listAudit' | 'verifyIntegrity'>;

@@ -9,7 +9,7 @@
 // overlapping issues can never share a number.
 import { X509Certificate } from 'node:crypto';
 import { z } from 'zod';
-import { appendAudit } from '../../../db/queries/audit';
+import { appendAudit, auditHeadOf } from '../../../db/queries/audit';
 import { documentKeyFingerprints } from '../../../db/queries/document-keys';
 import { getCheck } from '../../../db/queries/checks';
 import {
@@ -274,6 +274,7 @@ function prepare(ctx: ServiceContext, kind: DocumentKind, input: z.output<typeof
         revision,
         issuedAt,
         issuedBy: ctx.actor,
+        auditHead: auditHeadOf(db),
         replaces: current
           ? {
               number: current.number,

@@ -1,6 +1,7 @@
 // Drafts of checks: stores the exchange document as it is typed. Only the shape is checked
 // here (a JSON object of bounded size, a known format); the full meaning is checked when the
 // draft is recorded with recordCheck, since half-typed readings are normal in a draft.
+import { appendAudit } from '../../../db/queries/audit';
 import { z } from 'zod';
 import {
   deleteDraft,
@@ -95,6 +96,7 @@ export function saveDraft(ctx: ServiceContext, input: Parameters<DraftsApi['save
     } else if (!updateDraft(ctx.db, id, { meterAssetId: meter, document: d.document, updatedAt: at })) {
       throw new LabError('not-found', `no draft number ${id}: it was recorded or discarded`);
     }
+    draftAudit(ctx, at, d.draftId === undefined ? 'create' : 'save', id, { meter });
   })();
   return summary(requireDraft(ctx, id));
 }
@@ -111,8 +113,22 @@ export function discardDraft(ctx: ServiceContext, draftId: Parameters<DraftsApi[
   const d = requireDraft(ctx, draftId);
   ctx.db.transaction(() => {
     if (!deleteDraft(ctx.db, d.id)) throw new LabError('not-found', `no draft number ${d.id}`);
+    draftAudit(ctx, ctx.clock.now(), 'discard', d.id, undefined);
   })();
   return { draftId: d.id };
+}
+
+/** Drafts are shown and resumed, so their saves are in the trail too (with the draft's digest). */
+function draftAudit(ctx: ServiceContext, at: string, action: string, id: number, after: unknown): void {
+  appendAudit(ctx.db, {
+    at,
+    actor: ctx.actor,
+    action,
+    entity: 'draft',
+    entityId: String(id),
+    before: undefined,
+    after,
+  });
 }
 
 export const draftOps = { saveDraft, getDraft, listDrafts, discardDraft } satisfies OpGroup<keyof DraftsApi>;
