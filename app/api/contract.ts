@@ -29,6 +29,7 @@ import { SWEEP_OPERATIONS, type SweepApi } from './contract-sweep';
 import { DOCUMENTS_OPERATIONS, type DocumentsApi } from './contract-documents';
 import { DCC_OPERATIONS, type DccApi } from './contract-dcc';
 import { REGISTER_OPERATIONS, type RegisterApi } from './contract-register';
+import { UPKEEP_OPERATIONS, type UpkeepApi } from './contract-upkeep';
 
 export type {
   LabSettings,
@@ -65,7 +66,8 @@ export type LabApi = CoreApi &
   SweepApi &
   DocumentsApi &
   DccApi &
-  RegisterApi;
+  RegisterApi &
+  UpkeepApi;
 
 /** The foundation: register, meters, standards, people, checks, computations, CSV. */
 export interface CoreApi {
@@ -130,4 +132,5 @@ export const OPERATIONS = {
   ...SWEEP_OPERATIONS,
   ...DCC_OPERATIONS,
   ...REGISTER_OPERATIONS,
+  ...UPKEEP_OPERATIONS,
 } as const satisfies Record<OperationName, 'read' | 'write'>;

@@ -20,6 +20,7 @@ import { draftOps } from './ops/drafts';
 import { historyOps } from './ops/history';
 import { labOps } from './ops/lab';
 import { meterOps } from './ops/meters';
+import { meterUpkeepOps } from './ops/meter-upkeep';
 import { registerOps } from './ops/register';
 import { signingOps } from './ops/signing';
 import { standardOps } from './ops/standards';
@@ -37,6 +38,7 @@ export { CSV_COLUMNS, csvToDocuments } from './import-csv';
 const OPS = {
   ...labOps,
   ...meterOps,
+  ...meterUpkeepOps,
   ...registerOps,
   ...standardOps,
   ...checkOps,
