@@ -18,6 +18,7 @@ import { historyCommands } from './commands-history';
 import { documentCommands } from './commands-documents';
 import { dccCommands } from './commands-dcc';
 import { recordsCommands } from './commands-records';
+import { labCommands } from './commands-lab';
 import { resolveBudgetSweepFile, resolveSweepFiles, sweepCommands } from './commands-sweep';
 import {
   UsageError,
@@ -42,6 +43,7 @@ const GROUPS: CommandGroup[] = [
   documentCommands,
   sweepCommands,
   dccCommands,
+  labCommands,
 ];
 
 const CORE_OPTIONS: NonNullable<ParseArgsConfig['options']> = {
@@ -109,6 +111,12 @@ export async function runCli(argv: string[], io: CliIo): Promise<number> {
     };
     json = values.json;
     const [command, ...rest] = parsed.positionals;
+    const commandHelp =
+      command && values.help ? GROUPS.find((g) => g.help?.[command])?.help?.[command] : undefined;
+    if (commandHelp) {
+      io.out(commandHelp);
+      return 0;
+    }
     if (values.help || !command) {
       io.out(usage());
       return command || values.help ? 0 : 2;

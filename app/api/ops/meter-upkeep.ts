@@ -26,7 +26,7 @@ const EditSchema = z.strictObject({
     .trim()
     .min(3, 'expected a reason of a few words')
     .max(1000, 'expected a reason of at most 1000 characters'),
-  changes: z.record(
+  changes: z.partialRecord(
     z.enum(EDITABLE as [string, ...string[]], `expected fields of a meter document: ${EDITABLE.join(', ')}`),
     z.unknown(),
   ),
