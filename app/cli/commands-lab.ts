@@ -209,7 +209,7 @@ export const labCommands: CommandGroup = {
         const doc = readObject(ctx, nth(ctx, 1, 'FILE.json', 'lab set FILE.json'));
         const lab = ctx.open();
         const before = await lab.api.getLab();
-        const after = await lab.api.updateLab({ ...before, ...doc } as never);
+        const after = await lab.api.updateLab({ ...before, ...doc });
         ctx.print(after, () => `lab settings saved: ${after.name}`);
         return 0;
       }
