@@ -18,7 +18,7 @@ import { historyCommands } from './commands-history';
 import { documentCommands } from './commands-documents';
 import { dccCommands } from './commands-dcc';
 import { recordsCommands } from './commands-records';
-import { labCommands } from './commands-lab';
+import { labCommands, meterRevisionsText } from './commands-lab';
 import { resolveBudgetSweepFile, resolveSweepFiles, sweepCommands } from './commands-sweep';
 import {
   UsageError,
@@ -171,6 +171,7 @@ export async function runCli(argv: string[], io: CliIo): Promise<number> {
             `stated accuracy ${m.accuracyRelPpm} ppm of reading${m.accuracyAbsHz ? ` + ${formatFrequency(m.accuracyAbsHz, 3)}` : ''}; loaded Q ${m.loadedQ}; max input ${m.maxInputPowerW} W`,
             `state ${m.state}; interval ${m.intervalMonths} months; last check ${r.lastCheckDate ?? '-'}; due ${r.dueDate ?? '-'} (${dueWords(r)})`,
             `location ${m.location || '-'}`,
+            meterRevisionsText(detail),
             '',
             table(
               ['check', 'rev', 'date', 'performer', 'as found', 'as left', 'worst'],
