@@ -16,6 +16,8 @@ export default tseslint.config(
       'test-output/**',
       'tmp/**',
       'eslint.config.js',
+      'stryker.config.mjs',
+      'reports/**',
     ],
   },
   js.configs.recommended,

@@ -19,7 +19,8 @@ const FILES: ReadonlyArray<readonly [number, string]> = [
   [7, '0007_stored_summaries.sql'],
   [8, '0008_audit_index.sql'],
   [9, '0009_cheaper_writes.sql'],
-  [10, '0010_lab_upkeep.sql'],
+  [10, '0010_document_keys.sql'],
+  [11, '0011_lab_upkeep.sql'],
 ];
 
 function load(version: number, file: string): Migration {

@@ -60,6 +60,8 @@ export async function createLabFile(
   try {
     if (withSample) await loadBundle(lab.api, readSampleBundle());
     else await lab.api.updateLab({ name: options.name ?? 'New laboratory' });
+    // The lab's document-signing key and certificate, made now with the lab's name.
+    await lab.api.documentCertificate();
     lab.close();
   } catch (e) {
     // A half-made lab file is worse than none: remove it so the user can simply retry.

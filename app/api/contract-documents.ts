@@ -68,6 +68,18 @@ export interface DocumentsApi {
   listDocuments(query?: DocumentQuery): Promise<IssuedDocument[]>;
   /** Checks a document's bytes against itself and against what this lab recorded. */
   verifyDocument(input: VerifyDocumentInput): Promise<VerifyReport>;
+  /** The certificate the lab signs documents with (made, and audited, if the lab has none yet):
+   * what a recipient compares a document's PDF signature with. */
+  documentCertificate(): Promise<DocumentCertificate>;
+}
+
+export interface DocumentCertificate {
+  /** SHA-256 of the certificate (DER), hex. */
+  fingerprint: string;
+  subject: string;
+  validFrom: string;
+  validTo: string;
+  certificatePem: string;
 }
 
 export const DOCUMENTS_OPERATIONS = {
@@ -76,4 +88,5 @@ export const DOCUMENTS_OPERATIONS = {
   worksheet: 'read',
   listDocuments: 'read',
   verifyDocument: 'read',
+  documentCertificate: 'write',
 } as const satisfies Record<keyof DocumentsApi, 'read' | 'write'>;

@@ -7,32 +7,11 @@
 // row reader takes a shortcut on unquoted text (app/formats/csv-rows.ts). The documents are those
 // grouping every row after reading the whole file gave (test/api/csv-documents.test.ts).
 import { eachCsvRow, type CsvRow, type CsvRowSink } from '../formats/csv-rows';
+import { CSV_COLUMNS } from '../formats/history-csv';
 import { LabError } from './errors';
 
 /** Columns of the history CSV (RFC 4180), one row per reading. Documented in docs/exchange.md. */
-export const CSV_COLUMNS = [
-  'meter',
-  'date',
-  'performer',
-  'standards',
-  'method',
-  'temperature_c',
-  'u_temperature_c',
-  'pressure_hpa',
-  'u_pressure_hpa',
-  'humidity_pct',
-  'u_humidity_pct',
-  'adjusted',
-  'point',
-  'phase',
-  'reference_hz',
-  'standard',
-  'reading',
-  'reading_unit',
-  'direction',
-  'dip_depth_db',
-  'remarks',
-] as const;
+export { CSV_COLUMNS };
 
 type CsvColumn = (typeof CSV_COLUMNS)[number];
 

@@ -5,7 +5,7 @@
 // writes in one transaction: a refusal writes nothing.
 //
 // Following an operation: recordCheck is ops/checks.ts recordCheck -> checks/prepare.ts
-// prepareCheck (validation and the engine) -> checks/write.ts writeCheck -> check-write.ts
+// prepareCheck (validation and the engine) -> checks/write.ts writeCheck -> db/queries/check-write.ts
 // writeCheckRows (the SQL).
 import type { LabDb } from '../../db/store';
 import { systemClock, type Clock } from './clock';

@@ -1,7 +1,7 @@
 // The shape of a CLI command, so groups of commands can live in their own files and join the
 // `dipledger` command through the GROUPS list in main.ts.
 import type { ParseArgsConfig } from 'node:util';
-import type { Clock } from '../api/support';
+import type { Clock } from '../api/clock';
 import type { OpenedLab } from '../api/open';
 
 export interface CliIo {

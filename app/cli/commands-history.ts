@@ -5,9 +5,9 @@ import type { CommandGroup } from './command';
 import type { CoverageReport, TrendReport, UseAnswer, UseReport } from '../api/contract-history';
 import { formatFrequency } from '../engine';
 import { UsageError, fmtPpm, signedHz, table } from './format';
+import { decimal, formatProbability } from '../model/quantity-format';
 
-const pct = (x: number) => `${(x * 100).toFixed(1)} %`;
-const num = (x: number, d = 1) => x.toFixed(d);
+const num = (x: number, d = 1) => decimal(x, d);
 
 export function trendText(t: TrendReport): string {
   const lines = [
@@ -40,7 +40,7 @@ export function trendText(t: TrendReport): string {
         f.fit ? num(f.fit.uSlopePpmPerYear, 2) : '-',
         f.fit ? num(f.fit.residualSdPpm) : '-',
         f.atDue ? `${fmtPpm(f.atDue.predictedPpm)} +/- ${num(f.atDue.halfWidthPpm)}` : '-',
-        f.atDue ? pct(f.atDue.probabilityOfConformity) : '-',
+        f.atDue ? formatProbability(f.atDue.probabilityOfConformity) : '-',
         f.projectedExitDate ?? '-',
       ]),
       [1, 2, 3, 4, 5, 6, 7, 8, 9],
@@ -93,7 +93,7 @@ function answerText(a: UseAnswer): string {
       `  correction ${signedHz(a.correction.correctionHz)} (${fmtPpm(a.correction.correctionPpm)}, u = ${num(a.correction.uPpm)} ppm), ${a.correction.basis}, from the check of ${a.correction.fromCheckDate}`,
     );
     lines.push(
-      `  expanded uncertainty of a corrected reading: ${formatFrequency(a.uncertainty.expandedHz, 3)} (${num(a.uncertainty.expandedPpm)} ppm, k = ${a.uncertainty.coverageFactor.toFixed(2)})`,
+      `  expanded uncertainty of a corrected reading: ${formatFrequency(a.uncertainty.expandedHz, 3)} (${num(a.uncertainty.expandedPpm)} ppm, k = ${decimal(a.uncertainty.coverageFactor, 2)})`,
     );
   }
   lines.push(

@@ -3,12 +3,13 @@
 // LabApi; the record command uses resolveSweepFiles to read trace files a document names.
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
-import { openApi } from '../api/open';
 import { LabError } from '../api/errors';
+import { fitTraceOf } from '../api/ops/sweep';
 import type { DipFit } from '../engine/resonance';
 import { formatFrequency } from '../engine';
 import type { CommandGroup } from './command';
 import { UsageError, fmt, numberOption, table } from './format';
+import { decimal, significant, plain } from '../model/quantity-format';
 
 const LEVELS = ['db', 'linear', 'volts', 'ri'] as const;
 const UNITS = ['Hz', 'kHz', 'MHz', 'GHz'] as const;
@@ -62,13 +63,13 @@ function dipRows(fits: { role: string; fit: DipFit }[]): string {
       role,
       formatFrequency(d.f0Hz, 10),
       formatFrequency(d.f0UncertaintyHz, 3),
-      d.loadedQ.toFixed(0),
-      d.loadedQUncertainty.toPrecision(2),
-      `${d.depthDb.toFixed(2)} dB`,
+      decimal(d.loadedQ, 0),
+      significant(d.loadedQUncertainty, 2),
+      `${decimal(d.depthDb, 2)} dB`,
       formatFrequency(d.halfDepthBandwidthHz, 4),
       formatFrequency(d.twoToneResolutionHz, 4),
-      d.unloadedQ === null ? '-' : d.unloadedQ.toPrecision(4),
-      d.externalQ === null ? '-' : d.externalQ.toPrecision(4),
+      d.unloadedQ === null ? '-' : significant(d.unloadedQ, 4),
+      d.externalQ === null ? '-' : significant(d.externalQ, 4),
     ]),
     [3, 4, 5],
   );
@@ -112,52 +113,47 @@ export const sweepCommands: CommandGroup = {
         false,
       );
       // A fit needs no lab file: it is computed on its own, nothing is stored.
-      const lab = openApi(':memory:', { clock: ctx.io.clock });
-      try {
-        const r = await lab.api.fitTrace({
-          text,
-          name: path.basename(file),
-          level: level as (typeof LEVELS)[number] | undefined,
-          frequencyUnit: unit as (typeof UNITS)[number] | undefined,
-          detectorSign: sign as 1 | -1 | undefined,
-          detectorOffsetV: offset,
-          method: ctx.values.scalar ? 'scalar' : 'auto',
-          model: model as (typeof MODELS)[number] | undefined,
-        });
-        // The plot is for drawing; the command line prints the fit and the thinned trace stays out.
-        const printed: Omit<typeof r, 'plot'> & { plot?: unknown } = { ...r };
-        delete printed.plot;
-        ctx.print(printed, () => {
-          const m = r.report.main;
-          const lines = [
-            `${path.basename(file)}: ${r.description}; ${m.method === 'complex-circle' ? 'complex fit (NPL MAT 58)' : 'scalar Lorentzian fit'}`,
-            '',
-            dipRows([
-              { role: 'main', fit: m },
-              ...r.report.spurious.map((s, i) => ({ role: `spurious ${i + 1}`, fit: s })),
-            ]),
-            '',
-            `baseline ${fmt(m.baselineAtF0)} at f0, residual RMS ${fmt(m.residualRms)}; ${m.pointsPerLinewidth} points across the half-depth width, ${m.pointsUsed} fitted`,
-            'FWHD: full width at half depth (f0 / QL); two tones: smallest spacing seen as two dips.',
-          ];
-          const choice = r.report.model;
-          if (choice) lines.push(`model: ${choice.used} (${choice.reason})`);
-          const judged = r.report.judgement;
-          if (judged)
-            lines.push(
-              `residuals against the baseline noise: reduced chi-square ${judged.reducedChiSquare.toPrecision(3)}`,
-            );
-          if (m.electricalDelayS !== undefined)
-            lines.push(
-              `electrical delay ${fmt(m.electricalDelayS * 1e9)} ns (u ${fmt((m.electricalDelayUncertaintyS ?? 0) * 1e9)} ns)`,
-            );
-          for (const w of r.warnings) lines.push(`WARNING: ${w}`);
-          for (const n of r.report.notes) lines.push(`note: ${n}`);
-          return lines.join('\n');
-        });
-      } finally {
-        lab.close();
-      }
+      const r = fitTraceOf({
+        text,
+        name: path.basename(file),
+        level: level as (typeof LEVELS)[number] | undefined,
+        frequencyUnit: unit as (typeof UNITS)[number] | undefined,
+        detectorSign: sign as 1 | -1 | undefined,
+        detectorOffsetV: offset,
+        method: ctx.values.scalar ? 'scalar' : 'auto',
+        model: model as (typeof MODELS)[number] | undefined,
+      });
+      // The plot is for drawing; the command line prints the fit and the thinned trace stays out.
+      const printed: Omit<typeof r, 'plot'> & { plot?: unknown } = { ...r };
+      delete printed.plot;
+      ctx.print(printed, () => {
+        const m = r.report.main;
+        const lines = [
+          `${path.basename(file)}: ${r.description}; ${m.method === 'complex-circle' ? 'complex fit (NPL MAT 58)' : 'scalar Lorentzian fit'}`,
+          '',
+          dipRows([
+            { role: 'main', fit: m },
+            ...r.report.spurious.map((s, i) => ({ role: `spurious ${i + 1}`, fit: s })),
+          ]),
+          '',
+          `baseline ${fmt(m.baselineAtF0)} at f0, residual RMS ${fmt(m.residualRms)}; ${m.pointsPerLinewidth} points across the half-depth width, ${m.pointsUsed} fitted`,
+          'FWHD: full width at half depth (f0 / QL); two tones: smallest spacing seen as two dips.',
+        ];
+        const choice = r.report.model;
+        if (choice) lines.push(`model: ${choice.used} (${choice.reason})`);
+        const judged = r.report.judgement;
+        if (judged)
+          lines.push(
+            `residuals against the baseline noise: reduced chi-square ${judged.reducedChiSquare.toPrecision(3)}`,
+          );
+        if (m.electricalDelayS !== undefined)
+          lines.push(
+            `electrical delay ${fmt(m.electricalDelayS * 1e9)} ns (u ${fmt((m.electricalDelayUncertaintyS ?? 0) * 1e9)} ns)`,
+          );
+        for (const w of r.warnings) lines.push(`WARNING: ${w}`);
+        for (const n of r.report.notes) lines.push(`note: ${n}`);
+        return lines.join('\n');
+      });
       return 0;
     },
 
@@ -178,15 +174,15 @@ export const sweepCommands: CommandGroup = {
             : 'the chart stored with the meter';
         const lines = [
           `dial chart of ${r.assetId}: ${words[f.model.kind]}`,
-          `from ${r.pointCount} points of ${from}; residuals RMS ${f.rmsResidualPpm.toFixed(1)} ppm, largest ${f.maxResidualPpm.toFixed(1)} ppm (limit ${r.acceptPpm.toFixed(0)} ppm)`,
+          `from ${r.pointCount} points of ${from}; residuals RMS ${decimal(f.rmsResidualPpm, 1)} ppm, largest ${decimal(f.maxResidualPpm, 1)} ppm (limit ${decimal(r.acceptPpm, 0)} ppm)`,
           '',
           table(
             ['model', 'accepted', 'RMS / ppm', 'max / ppm', 'why'],
             f.candidates.map((c) => [
               c.model,
               c.accepted ? 'yes' : 'no',
-              c.rmsResidualPpm === null ? '-' : c.rmsResidualPpm.toFixed(1),
-              c.maxResidualPpm === null ? '-' : c.maxResidualPpm.toFixed(1),
+              c.rmsResidualPpm === null ? '-' : decimal(c.rmsResidualPpm, 1),
+              c.maxResidualPpm === null ? '-' : decimal(c.maxResidualPpm, 1),
               c.reason,
             ]),
             [2, 3],
@@ -194,17 +190,17 @@ export const sweepCommands: CommandGroup = {
           '',
           table(
             ['divisions', 'frequency'],
-            r.table.map((row) => [String(row.divisions), formatFrequency(row.frequencyHz, 7)]),
+            r.table.map((row) => [plain(row.divisions), formatFrequency(row.frequencyHz, 7)]),
             [0, 1],
           ),
           '',
           table(
             ['point div', 'measured', 'chart', 'residual'],
             f.residuals.map((x) => [
-              String(x.divisions),
+              plain(x.divisions),
               formatFrequency(x.frequencyHz, 8),
               formatFrequency(x.fittedHz, 8),
-              `${x.residualPpm.toFixed(1)} ppm`,
+              `${decimal(x.residualPpm, 1)} ppm`,
             ]),
             [0, 3],
           ),
@@ -231,8 +227,8 @@ export const sweepCommands: CommandGroup = {
                 s.phase,
                 String(s.dialSetting),
                 formatFrequency(s.f0Hz, 9),
-                s.loadedQ.toFixed(0),
-                `${s.depthDb.toFixed(2)} dB`,
+                decimal(s.loadedQ, 0),
+                `${decimal(s.depthDb, 2)} dB`,
                 s.spuriousHz.length ? s.spuriousHz.map((h) => formatFrequency(h, 6)).join(', ') : '-',
               ]),
               [0, 2, 6, 7],

@@ -6,6 +6,17 @@ import { LabError } from '../api/errors';
 import type { CheckRecord, RegisterRow } from '../api/contract';
 import { formatFrequency } from '../engine';
 import type { PointResult, Verdict } from '../engine/model';
+import {
+  decimal,
+  formatHz,
+  formatInUnit,
+  formatPpm,
+  formatProbability,
+  formatSensitivity,
+  significant,
+  uncertaintyPlace,
+  withPrefixedHz,
+} from '../model/quantity-format';
 
 export class UsageError extends Error {}
 
@@ -65,30 +76,34 @@ export function registerTable(rows: RegisterRow[]): string {
 export function budgetText(p: PointResult, referenceHz: number): string {
   const b = p.budget;
   const rows = b.contributions.map((c) => [
-    c.label,
+    withPrefixedHz(c.label),
     c.type,
     c.distribution,
-    `${fmt(c.standardUncertainty)} ${c.unit}`,
-    sensitivityText(c.sensitivity, c.unit),
-    fmt(c.contributionHz),
-    Number.isFinite(c.dof) ? String(Math.round(c.dof * 10) / 10) : 'inf',
+    formatInUnit(c.standardUncertainty, c.unit),
+    formatSensitivity(c.sensitivity, c.unit),
+    formatHz(c.contributionHz, { digits: 3 }),
+    Number.isFinite(c.dof) ? decimal(c.dof, 1) : 'inf',
   ]);
+  // Indication and corrected value to the decimal place of U at two significant digits (GUM
+  // 7.2.6), so the correction shows whenever it matters against U.
+  const at = (hz: number) => formatHz(hz, { placeExponent: uncertaintyPlace(b.expandedHz) });
+  const tolPpm = (p.decision.toleranceHz / Math.abs(p.correctedHz)) * 1e6;
   const lines = [
-    table(['input quantity', 'type', 'distribution', 'u(x)', 'c', 'u(y) / Hz', 'dof'], rows, [3, 4, 5, 6]),
+    table(['input quantity', 'type', 'distribution', 'u(x)', 'c', 'u(y)', 'dof'], rows, [3, 4, 5, 6]),
     '',
-    `reference frequency  ${formatFrequency(referenceHz, 10)}`,
-    `indication           ${formatFrequency(p.indicatedHz, 10)}`,
-    `corrected to ref.    ${formatFrequency(p.correctedHz, 10)}  (thermal ${fmtPpm(p.thermalCorrectionPpm)}, air ${fmtPpm(p.airCorrectionPpm)})`,
+    `reference frequency  ${formatHz(referenceHz, { digits: 10, trim: true })}`,
+    `indication           ${at(p.indicatedHz)}`,
+    `corrected to ref.    ${at(p.correctedHz)}  (thermal ${fmtPpm(p.thermalCorrectionPpm)}, air ${fmtPpm(p.airCorrectionPpm)})`,
     `error                ${signedHz(p.errorHz)}  (${fmtPpm(p.errorPpm)})`,
-    `combined u_c         ${formatFrequency(b.combinedHz, 4)}   effective dof ${Number.isFinite(b.effectiveDof) ? b.effectiveDof.toFixed(1) : 'inf'}`,
-    `expanded U           ${formatFrequency(b.expandedHz, 4)}  (k = ${b.coverageFactor.toFixed(2)}, p = ${(b.coverageProbability * 100).toFixed(2)} %; ${p.expandedPpm.toFixed(1)} ppm)`,
-    `tolerance            +/- ${formatFrequency(p.decision.toleranceHz, 4)}   acceptance limit ${formatFrequency(p.decision.acceptanceLimitHz, 4)}`,
-    `TUR                  ${p.decision.tur.toFixed(2)}`,
-    `P(conformity)        ${(p.decision.probabilityOfConformity * 100).toFixed(2)} %  (JCGM 106)`,
+    `combined u_c         ${formatHz(b.combinedHz, { digits: 3 })}   effective dof ${Number.isFinite(b.effectiveDof) ? decimal(b.effectiveDof, 1) : 'inf'}`,
+    `expanded U           ${formatHz(b.expandedHz, { digits: 2 })}  (k = ${decimal(b.coverageFactor, 2)}, p = ${decimal(b.coverageProbability * 100, 2)} %; ${significant(p.expandedPpm, 2)} ppm)`,
+    `tolerance            +/- ${formatHz(p.decision.toleranceHz, { digits: 4 })} (${decimal(tolPpm, 0)} ppm of reading)   acceptance limit ${formatHz(p.decision.acceptanceLimitHz, { digits: 4 })}`,
+    `TUR                  ${decimal(p.decision.tur, 2)}`,
+    `P(conformity)        ${formatProbability(p.decision.probabilityOfConformity)}  (JCGM 106)`,
     `decision rule        ${ruleWords(p.decision.rule)}`,
     `verdict              ${VERDICT_WORDS[p.decision.verdict]}`,
   ];
-  for (const n of p.notes) lines.push(`note: ${n}`);
+  for (const n of p.notes) lines.push(`note: ${withPrefixedHz(n)}`);
   return lines.join('\n');
 }
 
@@ -105,26 +120,18 @@ export function ruleWords(rule: PointResult['decision']['rule']): string {
   }
 }
 
+/** A plain number to four significant digits, never in e-notation. */
 export function fmt(x: number): string {
-  if (x === 0) return '0';
-  const a = Math.abs(x);
-  return a >= 1e4 || a < 1e-2 ? x.toExponential(3) : x.toPrecision(4);
+  return x === 0 ? '0' : significant(x, 4);
 }
-export const signedHz = (x: number) => `${x < 0 ? '-' : '+'}${formatFrequency(Math.abs(x), 5)}`;
+export const signedHz = (x: number) => `${x < 0 ? '-' : '+'}${formatHz(Math.abs(x), { digits: 5 })}`;
 
-/** Sensitivity with its unit: Hz of error per unit of the input quantity. */
-export function sensitivityText(c: number, unit: string): string {
-  if (unit === 'Hz') return fmt(c);
-  if (unit === '1/K') return `${fmt(c)} Hz K`;
-  return `${fmt(c)} Hz/${unit}`;
-}
-
-export const fmtPpm = (x: number) => `${x >= 0 ? '+' : ''}${x.toFixed(1)} ppm`;
+export const fmtPpm = (x: number) => formatPpm(x, 1, { signed: true });
 
 export function checkText(c: CheckRecord): string {
   const head = [
     `check ${c.checkId} revision ${c.revision} (${c.state}) of ${c.meterAssetId} on ${c.date} by ${c.performer}`,
-    `standards ${c.standards.join(', ')}; ${c.conditions.temperatureC} degC, ${c.conditions.pressureHpa} hPa, ${c.conditions.humidityPct} %RH`,
+    `standards ${c.standards.join(', ')}; ${c.conditions.temperatureC} °C, ${c.conditions.pressureHpa} hPa, ${c.conditions.humidityPct} %RH`,
     `as found ${verdictWord(c.asFoundVerdict)}; as left ${verdictWord(c.asLeftVerdict)}${c.adjusted ? ' (adjusted)' : ''}`,
     '',
   ];
@@ -133,9 +140,9 @@ export function checkText(c: CheckRecord): string {
     p.phase,
     formatFrequency(p.referenceHz, 7),
     fmtPpm(p.result.errorPpm),
-    `${p.result.expandedPpm.toFixed(1)} ppm`,
-    p.result.budget.coverageFactor.toFixed(2),
-    `${((Math.abs(p.result.errorHz) / p.result.decision.toleranceHz) * 100).toFixed(0)} %`,
+    `${significant(p.result.expandedPpm, 2)} ppm`,
+    decimal(p.result.budget.coverageFactor, 2),
+    `${decimal((Math.abs(p.result.errorHz) / p.result.decision.toleranceHz) * 100, 0)} %`,
     VERDICT_WORDS[p.result.decision.verdict],
   ]);
   return (

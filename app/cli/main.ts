@@ -1,12 +1,14 @@
 // The `dipledger` command: a thin shell over the LabApi. Parses arguments, calls one
 // operation, prints a table or JSON (SI units). Exit codes: 0 ok, 1 a verdict that is not a
 // pass where --require-pass asks, 2 bad input (nothing written), 3 an internal fault.
-import { readFileSync, writeFileSync } from 'node:fs';
+import { existsSync, readFileSync, writeFileSync } from 'node:fs';
 import { homedir } from 'node:os';
 import path from 'node:path';
 import { parseArgs, type ParseArgsConfig } from 'node:util';
 import { LabError } from '../api/errors';
 import { encodeJson } from '../model/json';
+import { messageForPeople } from '../model/field-labels';
+import { decimal, machineValues } from '../model/quantity-format';
 import { openApi, type OpenedLab } from '../api/open';
 import { systemClock, fixedClock } from '../api/service';
 import { StoreError } from '../../db/store';
@@ -20,6 +22,7 @@ import { dccCommands } from './commands-dcc';
 import { recordsCommands } from './commands-records';
 import { labCommands, meterRevisionsText } from './commands-lab';
 import { resolveBudgetSweepFile, resolveSweepFiles, sweepCommands } from './commands-sweep';
+import packageJson from '../../package.json' with { type: 'json' };
 import {
   UsageError,
   band,
@@ -59,11 +62,22 @@ const CORE_OPTIONS: NonNullable<ParseArgsConfig['options']> = {
   port: { type: 'string' },
   'require-pass': { type: 'boolean', default: false },
   help: { type: 'boolean', short: 'h', default: false },
+  version: { type: 'boolean', default: false },
 };
+
+/** The commands of the switch in runCli; the groups' commands are the keys of their handlers. */
+const CORE_COMMANDS = ['init', 'refs', 'due', 'show', 'record', 'budget', 'air', 'import', 'export', 'serve'];
+
+/** Every command `dipledger` answers. */
+export function commandNames(): string[] {
+  return [...CORE_COMMANDS, ...GROUPS.flatMap((g) => Object.keys(g.commands))];
+}
 
 const CORE_USAGE = `dipledger: calibration records for cavity frequency meters
 
 usage: dipledger [--db FILE] [--json] COMMAND [ARGS]
+       dipledger COMMAND --help          what one command does
+       dipledger --version
 
   init [--sample] [--name NAME]      create a lab file, optionally with the demo lab
   refs                               the register: every meter, band, state, due date
@@ -87,6 +101,36 @@ export function usage(): string {
   return CORE_USAGE.replace('%GROUPS%', GROUPS.map((g) => g.usage).join(''));
 }
 
+const GLOBAL_OPTIONS_HELP = `  --db FILE   the lab file (default: $DIPLEDGER_DB or the user's data folder)
+  --json      machine-readable output in SI units (Hz, ppm, degC, hPa)
+Exit codes: 0 ok, 1 not a pass where --require-pass asks, 2 bad input (nothing written).`;
+
+/** The usage entry of one command (its line in the usage text and the lines continuing it),
+ * or undefined for a command that has none. */
+export function commandHelp(command: string): string | undefined {
+  const lines = usage().split('\n');
+  const start = lines.findIndex(
+    (l) => /^ {2}\S/.test(l) && l.trim().split(/\s/)[0]!.split('|').includes(command),
+  );
+  if (start < 0) return undefined;
+  let end = start + 1;
+  while (end < lines.length && /^ {6,}\S/.test(lines[end]!)) end++;
+  // "  synopsis   description" then description lines indented to the description column.
+  // A long synopsis continues on the next lines with its options in brackets.
+  const [synopsis, ...first] = lines[start]!.trim().split(/ {2,}/);
+  const more = lines.slice(start + 1, end).map((l) => l.trim());
+  const optionLines = first.length ? 0 : more.findIndex((l) => !l.startsWith('['));
+  const options = more.splice(0, optionLines < 0 ? more.length : optionLines);
+  const description = [first.join(' '), ...more].filter((l) => l);
+  return [
+    `usage: dipledger [--db FILE] [--json] ${[synopsis, ...options].join(' ')}`,
+    '',
+    ...description.map((l) => `  ${l}`),
+    '',
+    GLOBAL_OPTIONS_HELP,
+  ].join('\n');
+}
+
 /** Runs one command line; returns the exit code. Never throws. */
 export async function runCli(argv: string[], io: CliIo): Promise<number> {
   let opened: OpenedLab | undefined;
@@ -108,23 +152,32 @@ export async function runCli(argv: string[], io: CliIo): Promise<number> {
       port?: string;
       'require-pass': boolean;
       help: boolean;
+      version: boolean;
     };
     json = values.json;
     const [command, ...rest] = parsed.positionals;
-    const commandHelp =
-      command && values.help ? GROUPS.find((g) => g.help?.[command])?.help?.[command] : undefined;
-    if (commandHelp) {
-      io.out(commandHelp);
+    if (values.version) {
+      io.out(`dipledger ${packageJson.version}`);
+      return 0;
+    }
+    if (values.help && command) {
+      // A group's own help for a command with subcommands, else the command's usage lines.
+      const help = GROUPS.find((g) => g.help?.[command])?.help?.[command] ?? commandHelp(command);
+      if (help === undefined) throw new UsageError(`unknown command "${command}"`);
+      io.out(help);
       return 0;
     }
     if (values.help || !command) {
       io.out(usage());
-      return command || values.help ? 0 : 2;
+      return values.help ? 0 : 2;
     }
     const dbFile = values.db
       ? path.resolve(io.cwd, values.db)
       : labFilePath(io.env, process.platform, homedir());
-    const print = (value: unknown, text: () => string) => io.out(json ? encodeJson(value, 2) : text());
+    // JSON numbers in SI units at 15 significant digits: no float noise, nothing measured lost
+    // (docs/exchange.md, "Numbers in --json output").
+    const print = (value: unknown, text: () => string) =>
+      io.out(json ? encodeJson(machineValues(value), 2) : text());
     const open = () => (opened = openApi(dbFile, { clock: io.clock, actor: io.env.USER ?? 'cli' }));
     const arg = (name: string) => {
       const v = rest[0];
@@ -182,7 +235,7 @@ export async function runCli(argv: string[], io: CliIo): Promise<number> {
                 c.performer,
                 verdictWord(c.asFoundVerdict),
                 verdictWord(c.asLeftVerdict),
-                c.worstUsedFraction === null ? '-' : `${(c.worstUsedFraction * 100).toFixed(0)} % of tol.`,
+                c.worstUsedFraction === null ? '-' : `${decimal(c.worstUsedFraction * 100, 0)} % of tol.`,
               ]),
               [0, 1, 6],
             ),
@@ -226,10 +279,10 @@ export async function runCli(argv: string[], io: CliIo): Promise<number> {
         const r = await lab.api.airRefractivity(input as never);
         print(r, () =>
           [
-            `refractivity N      ${r.refractivityN.toFixed(2)}  (ITU-R P.453)`,
-            `refractive index n  ${r.refractiveIndex.toFixed(8)}`,
-            `water vapour e      ${r.waterVapourHpa.toFixed(2)} hPa`,
-            `resonance shift     ${fmtPpm(r.shiftPpm)} against reference air (20 degC, 1013.25 hPa, 50 %RH; N = ${r.referenceN.toFixed(2)})`,
+            `refractivity N      ${decimal(r.refractivityN, 2)}  (ITU-R P.453)`,
+            `refractive index n  ${decimal(r.refractiveIndex, 8)}`,
+            `water vapour e      ${decimal(r.waterVapourHpa, 2)} hPa`,
+            `resonance shift     ${fmtPpm(r.shiftPpm)} against reference air (20 °C, 1013.25 hPa, 50 %RH; N = ${decimal(r.referenceN, 2)})`,
           ].join('\n'),
         );
         return 0;
@@ -265,6 +318,7 @@ export async function runCli(argv: string[], io: CliIo): Promise<number> {
           path.dirname(new URL(import.meta.url).pathname),
           '../../renderer/dist',
         );
+        await ensureRendererBuilt(staticDir, io);
         const server = await startServer({ api: lab.api, port, staticDir });
         io.out(`Dipledger: ${server.launchUrl}  (Ctrl+C to stop)`);
         opened = undefined; // keep the lab open while serving
@@ -283,6 +337,25 @@ export async function runCli(argv: string[], io: CliIo): Promise<number> {
   }
 }
 
+/** The window's files are made by `npm run build:renderer` (vite); `npm start` builds them, a
+ * fresh install has none. Build them here on first use, or say exactly what to run. */
+async function ensureRendererBuilt(staticDir: string, io: CliIo): Promise<void> {
+  if (existsSync(path.join(staticDir, 'index.html'))) return;
+  io.err('dipledger: the window is not built yet; building it once (npm run build:renderer)...');
+  const root = path.resolve(staticDir, '../..');
+  try {
+    const { build } = await import('vite');
+    await build({ configFile: path.join(root, 'vite.config.ts'), logLevel: 'warn' });
+  } catch (e) {
+    throw new UsageError(
+      `the window could not be built (${e instanceof Error ? e.message.split('\n')[0] : String(e)}); ` +
+        `run "npm run build:renderer" in ${root}, then "dipledger serve" again`,
+    );
+  }
+  if (!existsSync(path.join(staticDir, 'index.html')))
+    throw new UsageError(`the window was not built; run "npm run build:renderer" in ${root}`);
+}
+
 function report(e: unknown, io: CliIo, json: boolean): number {
   if (
     e instanceof UsageError ||
@@ -294,8 +367,9 @@ function report(e: unknown, io: CliIo, json: boolean): number {
   if (e instanceof LabError) {
     if (json) io.err(encodeJson({ error: { code: e.code, message: e.message, issues: e.issues } }, 2));
     else {
-      io.err(`dipledger: ${e.message}`);
-      for (const i of e.issues.slice(1)) io.err(`  ${i.message}`);
+      // Fields named as the forms name them; --json keeps the machine path in each issue.
+      io.err(`dipledger: ${messageForPeople(e.message, e.issues[0]?.field)}`);
+      for (const i of e.issues.slice(1)) io.err(`  ${messageForPeople(i.message, i.field)}`);
       if (e.code === 'invalid-input') io.err('nothing was written.');
     }
     return e.code === 'internal' ? 3 : 2;

@@ -9,7 +9,8 @@ import { drawErrorChart, tolerancePpm } from './chart';
 import type { CheckDocumentData } from './model';
 import { dccAttachment } from './dcc';
 import { CONTENT_WIDTH, MUTED, PAGE, Page, type Attachment } from './pdf';
-import { addSignaturePlaceholder, signWithP12, type PadesOptions } from './pades';
+import type { DocumentSigner } from '../signing/document-key';
+import { addSignaturePlaceholder, signPdf } from './pades';
 import { buildRecord, encodeRecord, recordFileName, RECORD_MEDIA_TYPE, sha256Hex } from './record';
 import {
   MEANING_TEXT,
@@ -18,7 +19,7 @@ import {
   dialText,
   fixed,
   ghz,
-  ghzDecimals,
+  ghzDecimalsFor,
   khzSigned,
   methodText,
   num,
@@ -26,9 +27,11 @@ import {
   ruleText,
   fingerprintText,
   signed,
+  tolerancePpmOfReading,
   verdictText,
   when,
 } from './words';
+import { significant } from '../model/quantity-format';
 
 export interface RenderedDocument {
   pdf: Buffer;
@@ -82,13 +85,12 @@ export function openIssued(
   return { page, record, recordName, recordSha256 };
 }
 
-/** Attaches the record and writes the furniture; with `pades`, also the signature placeholder
- * (fill it with signRendered). */
+/** Attaches the record, writes the furniture and the PDF signature's placeholder (fill it with
+ * signRendered). */
 export function closeIssued(
   page: Page,
   opened: { record: Buffer; recordName: string; recordSha256: string },
   data: CheckDocumentData,
-  pades?: PadesOptions,
   more: Attachment[] = [],
 ): RenderedDocument {
   const pdf = page.finish(
@@ -103,7 +105,7 @@ export function closeIssued(
       },
       ...more,
     ],
-    pades ? (doc) => addSignaturePlaceholder(doc, pades) : undefined,
+    (doc) => addSignaturePlaceholder(doc, data),
   );
   return {
     pdf,
@@ -144,23 +146,22 @@ function resultsTable(page: Page, points: CheckPointRecord[], decimals: number):
       ghz(p.result.correctedHz, decimals),
       khzSigned(p.result.errorHz, 1),
       signed(p.result.errorPpm, 1),
-      fixed(p.result.expandedPpm, 1),
+      significant(p.result.expandedPpm, 2),
       fixed(p.result.budget.coverageFactor, 2),
-      fixed((p.result.decision.toleranceHz / p.referenceHz) * 1e6, 0),
+      fixed(tolerancePpmOfReading(p.result.decision.toleranceHz, p.result.correctedHz), 0),
       verdictText(p.result.decision.verdict),
     ]),
     { keepWithHeader: 40 },
   );
 }
 
-/** Fills the signature placeholder of a document rendered with `pades` (asynchronous: the
- * signing library is). */
-export async function signRendered(r: RenderedDocument, pades: PadesOptions): Promise<RenderedDocument> {
-  const pdf = await signWithP12(r.pdf, pades);
+/** Fills the signature placeholder of a rendered document (asynchronous: the signing library is). */
+export async function signRendered(r: RenderedDocument, signer: DocumentSigner): Promise<RenderedDocument> {
+  const pdf = await signPdf(r.pdf, signer);
   return { ...r, pdf, sha256: sha256Hex(pdf) };
 }
 
-export function renderCertificate(data: CheckDocumentData, pades?: PadesOptions): RenderedDocument {
+export function renderCertificate(data: CheckDocumentData): RenderedDocument {
   const { lab, meter, check, issue } = data;
   const opened = openIssued(data, CERTIFICATE_TITLE, `Calibration of ${meter.assetId} on ${check.date}`);
   const page = opened.page;
@@ -168,7 +169,12 @@ export function renderCertificate(data: CheckDocumentData, pades?: PadesOptions)
   const found = check.points.filter((p) => p.phase === 'as-found');
   const left = check.points.filter((p) => p.phase === 'as-left');
   const rule = check.points[0]?.result.decision.rule ?? lab.decisionRule;
-  const decimals = ghzDecimals(meter.dialKind === 'direct' ? meter.resolution / 10 : 1e3);
+  // One decimal place for the frequency columns of both tables: the dial's, or the finer place
+  // of the smallest U (GUM 7.2.6), so a correction significant against U shows.
+  const decimals = ghzDecimalsFor(
+    meter,
+    check.points.map((p) => p.result.budget.expandedHz),
+  );
 
   // Title block (7.8.2.1 a, b, d, j).
   page.font('bold', 20);
@@ -357,5 +363,5 @@ export function renderCertificate(data: CheckDocumentData, pades?: PadesOptions)
   );
   page.end(`End of certificate ${issue.number} revision ${issue.revision}`);
   // The hybrid certificate: the DCC travels beside the record, as data a receiving lab reads.
-  return closeIssued(page, opened, data, pades, [dccAttachment(data)]);
+  return closeIssued(page, opened, data, [dccAttachment(data)]);
 }

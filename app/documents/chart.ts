@@ -3,6 +3,7 @@
 // point's error with its expanded uncertainty U as a bar. Drawn with pdfkit vector graphics so
 // it stays sharp in print and adds no image to the archive.
 import type { CheckRecord, Meter } from '../model/records';
+import { roundTicks, tickLabels } from '../model/quantity-format';
 import { ACCENT, INK, MUTED, RULE, type Page } from './pdf';
 
 export interface ChartBox {
@@ -12,22 +13,9 @@ export interface ChartBox {
   height: number;
 }
 
-/** Round tick steps (1, 2, 5 x 10^n) giving about `count` intervals over [lo, hi]. */
+/** Round tick values (1, 2, 5 × 10ⁿ apart) giving about `count` intervals over [lo, hi]. */
 export function niceTicks(lo: number, hi: number, count = 6): number[] {
-  const span = hi - lo || Math.abs(hi) || 1;
-  const raw = span / count;
-  const mag = 10 ** Math.floor(Math.log10(raw));
-  const step = [1, 2, 2.5, 5, 10].map((m) => m * mag).find((s) => s >= raw) ?? 10 * mag;
-  const first = Math.ceil(lo / step - 1e-9) * step;
-  const out: number[] = [];
-  for (let v = first; v <= hi + step * 1e-9; v += step) out.push(Math.abs(v) < step * 1e-9 ? 0 : v);
-  return out;
-}
-
-function tickLabel(v: number, ticks: number[]): string {
-  const step = ticks.length > 1 ? Math.abs((ticks[1] as number) - (ticks[0] as number)) : 1;
-  const decimals = Math.max(0, Math.min(6, -Math.floor(Math.log10(step) + 1e-9)));
-  return v.toFixed(decimals);
+  return roundTicks(lo, hi, count);
 }
 
 /** Stated tolerance at a frequency, ppm of reading. */
@@ -137,13 +125,15 @@ export function drawErrorChart(page: Page, box: ChartBox, meter: Meter, check: C
   // Tick labels and axis titles with units.
   page.font('regular', 7);
   d.fillColor(INK);
+  const xLabels = tickLabels(xTicks);
+  const yLabels = tickLabels(yTicks);
   for (const t of xTicks) {
-    const label = tickLabel(t, xTicks);
+    const label = xLabels[xTicks.indexOf(t)] ?? '';
     const w = d.widthOfString(label);
     d.text(label, X(t) - w / 2, plot.y + plot.height + 4, { lineBreak: false });
   }
   for (const t of yTicks) {
-    const label = tickLabel(t, yTicks);
+    const label = yLabels[yTicks.indexOf(t)] ?? '';
     const w = d.widthOfString(label);
     d.text(label, plot.x - 4 - w, Y(t) - 3.5, { lineBreak: false });
   }

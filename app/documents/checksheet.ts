@@ -3,11 +3,17 @@
 // (JCGM 100:2008 layout), error, U, k, decision and verdict, and the signatures with their
 // meanings. It carries the same machine-readable record as the certificate.
 import type { CheckPointRecord } from '../model/records';
-import type { Contribution } from '../engine/model';
+import {
+  formatInUnit,
+  formatPpm,
+  formatProbability,
+  formatSensitivity,
+  significant,
+  withPrefixedHz,
+} from '../model/quantity-format';
 import { closeIssued, identification, openIssued, type RenderedDocument } from './certificate';
 import type { CheckDocumentData } from './model';
 import { MUTED, PAGE } from './pdf';
-import type { PadesOptions } from './pades';
 import {
   MEANING_TEXT,
   accuracyText,
@@ -16,44 +22,36 @@ import {
   fingerprintText,
   fixed,
   ghz,
-  ghzDecimals,
+  ghzDecimalsFor,
+  hz,
   khzSigned,
   methodText,
   num,
+  perKelvin,
   ruleText,
   signed,
+  tolerancePpmOfReading,
   verdictText,
   when,
 } from './words';
 
 export const CHECK_SHEET_TITLE = 'Check-sheet';
 
-function u(x: number): string {
-  if (x === 0) return '0';
-  const a = Math.abs(x);
-  return a >= 1e5 || a < 1e-3 ? x.toExponential(2) : Number(x.toPrecision(3)).toString();
-}
-
 function dof(x: number): string {
   return Number.isFinite(x) ? fixed(x, x < 100 ? 1 : 0) : '∞';
 }
 
-/** Units as printed: the engine's plain-text 'degC' as °C. */
-const unitText = (unit: string) => (unit === 'degC' ? '°C' : unit);
-
-function sensitivity(c: Contribution): string {
-  if (c.unit === 'Hz') return u(c.sensitivity);
-  if (c.unit === '1/K') return `${u(c.sensitivity)} Hz·K`;
-  return `${u(c.sensitivity)} Hz/${unitText(c.unit)}`;
-}
+/** The reported expanded uncertainty: two significant digits (GUM 7.2.6). */
+const expanded = (x: number) => hz(x, 2);
 
 function pointBlock(
   page: CheckSheetPage,
   p: CheckPointRecord,
   data: CheckDocumentData,
-  decimals: number,
+  tableDecimals: number,
 ): void {
   const r = p.result;
+  const decimals = Math.max(tableDecimals, ghzDecimalsFor(data.meter, [r.budget.expandedHz]));
   const direct = data.meter.dialKind === 'direct';
   page.ensure(200);
   page.heading(
@@ -88,16 +86,16 @@ function pointBlock(
       { title: 'Distribution', width: 10 },
       { title: 'u(x)', width: 13, align: 'right' },
       { title: 'Sensitivity c', width: 14, align: 'right' },
-      { title: 'u(y) / Hz', width: 10, align: 'right' },
+      { title: 'u(y)', width: 10, align: 'right' },
       { title: 'ν', width: 6, align: 'right' },
     ],
     r.budget.contributions.map((c) => [
-      c.label,
+      withPrefixedHz(c.label),
       c.type,
       c.distribution,
-      `${u(c.standardUncertainty)} ${unitText(c.unit)}`,
-      sensitivity(c),
-      u(c.contributionHz),
+      formatInUnit(c.standardUncertainty, c.unit),
+      formatSensitivity(c.sensitivity, c.unit),
+      hz(c.contributionHz),
       dof(c.dof),
     ]),
     { size: 7.5 },
@@ -107,13 +105,13 @@ function pointBlock(
     [
       [
         'Combined and expanded',
-        `u_c = ${u(r.budget.combinedHz)} Hz, ν_eff = ${dof(r.budget.effectiveDof)}, k = ${fixed(r.budget.coverageFactor, 2)} (p = ${fixed(r.budget.coverageProbability * 100, 2)} %), U = ${u(r.budget.expandedHz)} Hz = ${fixed(r.expandedPpm, 2)} ppm`,
+        `u_c = ${hz(r.budget.combinedHz)}, ν_eff = ${dof(r.budget.effectiveDof)}, k = ${fixed(r.budget.coverageFactor, 2)} (p = ${fixed(r.budget.coverageProbability * 100, 2)} %), U = ${expanded(r.budget.expandedHz)} = ${significant(r.expandedPpm, 2)} ppm`,
       ],
       [
         'Decision',
-        `tolerance ±${u(dcs.toleranceHz)} Hz, guard band ${u(dcs.guardBandHz)} Hz, acceptance limit ±${u(dcs.acceptanceLimitHz)} Hz; TUR ${fixed(dcs.tur, 2)}; probability of conformity ${fixed(dcs.probabilityOfConformity * 100, 2)} % (JCGM 106:2012); verdict ${verdictText(dcs.verdict)}`,
+        `tolerance ±${hz(dcs.toleranceHz, 4)} (${formatPpm(tolerancePpmOfReading(dcs.toleranceHz, r.correctedHz), 0)} of reading), guard band ${hz(dcs.guardBandHz)}, acceptance limit ±${hz(dcs.acceptanceLimitHz, 4)}; TUR ${fixed(dcs.tur, 2)}; probability of conformity ${formatProbability(dcs.probabilityOfConformity)} (JCGM 106:2012); verdict ${verdictText(dcs.verdict)}`,
       ],
-      ...r.notes.map((n): [string, string] => ['Note', n]),
+      ...r.notes.map((n): [string, string] => ['Note', withPrefixedHz(n)]),
     ],
     170,
   );
@@ -121,7 +119,7 @@ function pointBlock(
 
 type CheckSheetPage = ReturnType<typeof openIssued>['page'];
 
-export function renderCheckSheet(data: CheckDocumentData, pades?: PadesOptions): RenderedDocument {
+export function renderCheckSheet(data: CheckDocumentData): RenderedDocument {
   const { lab, meter, check, issue } = data;
   const opened = openIssued(
     data,
@@ -130,7 +128,10 @@ export function renderCheckSheet(data: CheckDocumentData, pades?: PadesOptions):
   );
   const page = opened.page;
   const d = page.doc;
-  const decimals = ghzDecimals(meter.dialKind === 'direct' ? meter.resolution / 10 : 1e3);
+  const decimals = ghzDecimalsFor(
+    meter,
+    check.points.map((p) => p.result.budget.expandedHz),
+  );
   const rule = check.points[0]?.result.decision.rule ?? lab.decisionRule;
 
   page.font('bold', 18);
@@ -159,7 +160,7 @@ export function renderCheckSheet(data: CheckDocumentData, pades?: PadesOptions):
     ['Stated accuracy', accuracyText(meter)],
     [
       'Cavity and reference',
-      `α = ${u(meter.alphaPerK)} /K (u ${u(meter.alphaUncertaintyPerK)} /K); loaded Q ${num(meter.loadedQ, 4)}; reference ${num(meter.reference.temperatureC, 4)} °C, ${num(meter.reference.pressureHpa, 6)} hPa, ${num(meter.reference.humidityPct, 3)} %RH`,
+      `α = ${perKelvin(meter.alphaPerK)} (u ${perKelvin(meter.alphaUncertaintyPerK, 2)}); loaded Q ${num(meter.loadedQ, 4)}; reference ${num(meter.reference.temperatureC, 4)} °C, ${num(meter.reference.pressureHpa, 6)} hPa, ${num(meter.reference.humidityPct, 3)} %RH`,
     ],
     ['Date and performer', `${check.date}, ${check.performer}`],
     ['Method', methodText(check.method)],
@@ -191,7 +192,7 @@ export function renderCheckSheet(data: CheckDocumentData, pades?: PadesOptions):
       { title: 'Thermal / ppm', width: 8, align: 'right' },
       { title: 'Air / ppm', width: 8, align: 'right' },
       { title: 'Error / ppm', width: 8, align: 'right' },
-      { title: 'u_c / Hz', width: 9, align: 'right' },
+      { title: 'u_c', width: 9, align: 'right' },
       { title: 'k', width: 5, align: 'right' },
       { title: 'U / ppm', width: 7, align: 'right' },
       { title: 'Tol. / ±ppm', width: 8, align: 'right' },
@@ -205,11 +206,11 @@ export function renderCheckSheet(data: CheckDocumentData, pades?: PadesOptions):
       signed(p.result.thermalCorrectionPpm, 2),
       signed(p.result.airCorrectionPpm, 2),
       signed(p.result.errorPpm, 1),
-      u(p.result.budget.combinedHz),
+      hz(p.result.budget.combinedHz),
       fixed(p.result.budget.coverageFactor, 2),
-      fixed(p.result.expandedPpm, 1),
-      fixed((p.result.decision.toleranceHz / p.referenceHz) * 1e6, 0),
-      `${fixed(p.result.decision.probabilityOfConformity * 100, 1)} %`,
+      significant(p.result.expandedPpm, 2),
+      fixed(tolerancePpmOfReading(p.result.decision.toleranceHz, p.result.correctedHz), 0),
+      formatProbability(p.result.decision.probabilityOfConformity),
       verdictText(p.result.decision.verdict),
     ]),
   );
@@ -247,5 +248,5 @@ export function renderCheckSheet(data: CheckDocumentData, pades?: PadesOptions):
     { size: 8, color: MUTED },
   );
   page.end(`End of check-sheet ${issue.number} revision ${issue.revision}`);
-  return closeIssued(page, opened, data, pades);
+  return closeIssued(page, opened, data);
 }

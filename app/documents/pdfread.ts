@@ -7,7 +7,7 @@ import { inflateSync } from 'node:zlib';
 
 export class PdfReadError extends Error {}
 
-interface PdfObject {
+export interface PdfObject {
   dict: string;
   stream: Buffer | null;
 }
@@ -76,7 +76,7 @@ function firstString(text: string): string | null {
   return null;
 }
 
-function parseObjects(pdf: Buffer): Map<number, PdfObject> {
+export function parseObjects(pdf: Buffer): Map<number, PdfObject> {
   const text = pdf.toString('latin1');
   const objects = new Map<number, PdfObject>();
   const re = /(?:^|[\r\n])(\d+) 0 obj\s/g;

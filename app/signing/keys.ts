@@ -1,7 +1,7 @@
 // Electronic signatures of records: Ed25519 key pairs (RFC 8032) from node:crypto, the private
 // key sealed at rest with AES-256-GCM under a key derived from the signer's passphrase by
 // scrypt (RFC 7914), and the canonical bytes a signature covers (JSON Canonicalization Scheme,
-// RFC 8785, through the `canonicalize` package). No secret ever leaves this module except as
+// RFC 8785, app/signing/canonical-json.ts). No secret ever leaves this module except as
 // the sealed form; a wrong passphrase is told apart from a damaged key by GCM's tag failing.
 import {
   createCipheriv,
@@ -16,7 +16,7 @@ import {
   verify,
   type KeyObject,
 } from 'node:crypto';
-import canonicalize from 'canonicalize';
+import { canonicalJson } from './canonical-json';
 import { encodeJson } from '../model/json';
 
 /** scrypt cost: N = 2^15, r = 8, p = 1 takes about 0.1 s and 32 MiB, the interactive-login
@@ -115,9 +115,7 @@ export function unsealPrivateKey(sealed: SealedKey, passphrase: string): KeyObje
  * strings the rest of the product uses, since JSON and JCS have no Infinity. */
 export function canonicalBytes(value: unknown): Buffer {
   const plain: unknown = JSON.parse(encodeJson(value));
-  const text = canonicalize(plain);
-  if (text === undefined) throw new Error('nothing to canonicalize');
-  return Buffer.from(text, 'utf8');
+  return Buffer.from(canonicalJson(plain), 'utf8');
 }
 
 export const sha256Hex = (bytes: Buffer): string => createHash('sha256').update(bytes).digest('hex');

@@ -7,7 +7,7 @@ interface PersonRow {
   id: number;
   name: string;
   role: Person['role'];
-  /** From 0010 (absent in a file at an older schema). */
+  /** From 0011 (absent in a file at an older schema). */
   left_on?: string | null;
 }
 

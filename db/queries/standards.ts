@@ -20,7 +20,7 @@ interface StandardRow {
   id: number;
   asset_id: string;
   description: string;
-  // From 0010 (absent in a file at an older schema).
+  // From 0011 (absent in a file at an older schema).
   kind?: StandardKind;
   min_hz?: number | null;
   max_hz?: number | null;

@@ -1,6 +1,6 @@
 // Keeping a lab up to date: a meter's specification revised (the values before and after kept
 // whole in meter_revision), a standard's kind, range, new certificates and retirement, a person's
-// role and leaving. Rows of 0010; the columns it added are read with SELECT * elsewhere so files
+// role and leaving. Rows of 0011; the columns it added are read with SELECT * elsewhere so files
 // at older schemas still open in tests that write them.
 import type { Meter, MeterRevision, StandardCertificate } from '../../app/model/records';
 import type { LabDb } from '../store';

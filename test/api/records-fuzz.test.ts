@@ -1,7 +1,8 @@
 // Property-based tests (fast-check, fixed seed from test/setup.ts): malformed and random inputs
 // to every API operation and every file reader. Each must answer or refuse with a LabError
 // (never crash, never an "internal" fault); a refusal, and any read, leaves the lab file as it
-// was. The long run (`npm run test:long`) sets DIPLEDGER_FUZZ_RUNS=10000 cases per entry point.
+// was. The long run (`npm run test:long`, DIPLEDGER_TEST_LONG=1) takes 10,000 cases per entry point;
+// DIPLEDGER_FUZZ_RUNS sets any other count.
 import fc from 'fast-check';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { OPERATIONS, type LabApi, type OperationName } from '../../app/api/contract';
@@ -13,8 +14,9 @@ import { readSweepFile } from '../../app/formats/sweep-file';
 import { readTouchstone } from '../../app/formats/touchstone';
 import { openLabDb, type LabDb } from '../../db/store';
 import { clock, goodCheck, seed } from '../fixtures/lab';
+import { LONG } from '../fixtures/test-level';
 
-const RUNS = Number(process.env.DIPLEDGER_FUZZ_RUNS ?? 60);
+const RUNS = Number(process.env.DIPLEDGER_FUZZ_RUNS ?? (LONG ? 10000 : 60));
 const TIMEOUT_MS = Math.max(60_000, RUNS * 40);
 
 let db: LabDb;

@@ -41,7 +41,7 @@ async function countRows(lab: OpenedLab) {
   return { audit: audit.length, signers: signers.length };
 }
 
-describe('Ed25519 and canonical JSON from node:crypto and canonicalize', () => {
+describe('Ed25519 from node:crypto and canonical JSON (RFC 8785)', () => {
   it('signs RFC 8032 section 7.1 TEST 1 (empty message) to the published signature', () => {
     // RFC 8032, 7.1 TEST 1: secret key, public key and signature as published.
     const secret = Buffer.from('9d61b19deffd5a60ba844af492ec2cc44449c5697b326919703bac031cae7f60', 'hex');

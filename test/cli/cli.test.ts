@@ -40,7 +40,7 @@ describe('dipledger air', () => {
     expect(o.stderr.join('\n')).toMatch(/--temp: "20,5" is not a number/);
     const o2 = io(tmpdir());
     expect(await runCli(['air', '--temp', '20', '--rh', '150', '--pressure', '1013'], o2)).toBe(2);
-    expect(o2.stderr.join('\n')).toMatch(/humidityPct/);
+    expect(o2.stderr.join('\n')).toMatch(/Relative humidity \(%RH\)/);
   });
 });
 
@@ -89,7 +89,7 @@ describe('dipledger record', () => {
           },
         ],
       },
-      /points\[0\]\.reference: "9,3 GHz" uses a decimal comma/,
+      /Point 1, reference frequency: "9,3 GHz" uses a decimal comma/,
     ],
     [
       'a missing unit',
@@ -104,7 +104,7 @@ describe('dipledger record', () => {
           },
         ],
       },
-      /points\[0\]\.reference: "9.3" has no unit/,
+      /Point 1, reference frequency: "9.3" has no unit/,
     ],
     [
       'a reading outside the band',
@@ -119,14 +119,14 @@ describe('dipledger record', () => {
           },
         ],
       },
-      /points\[0\]\.readings\[0\]\.value: "18 GHz" is outside the band/,
+      /Point 1, reading 1, value: "18 GHz" is outside the band/,
     ],
-    ['a date in the future', { date: '2026-12-24' }, /date: 2026-12-24 is in the future/],
-    ['an unknown meter', { meter: 'TW-99' }, /meter: no meter "TW-99"/],
+    ['a date in the future', { date: '2026-12-24' }, /Date: 2026-12-24 is in the future/],
+    ['an unknown meter', { meter: 'TW-99' }, /Meter: no meter "TW-99"/],
     [
       'a lab standard that does not exist',
       { standards: ['SRC-404'] },
-      /standards\[0\]: no lab standard "SRC-404"/,
+      /Standard 1: no lab standard "SRC-404"/,
     ],
   ];
   for (const [name, change, message] of bad) {

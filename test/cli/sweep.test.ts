@@ -107,7 +107,7 @@ describe('dipledger fit', () => {
     const before = readFileSync(file);
     const o = io(dir);
     expect(await runCli(['--db', file, 'record', 'check.json'], o)).toBe(2);
-    expect(o.stderr.join('\n')).toMatch(/points\[0\]\.sweep \(bad\.s2p\): line 11: "x" is not a number/);
+    expect(o.stderr.join('\n')).toMatch(/Point 1, sweep file \(bad\.s2p\): line 11: "x" is not a number/);
     expect(o.stderr.join('\n')).toMatch(/nothing was written/);
     expect(readFileSync(file).equals(before)).toBe(true);
     const missing = io(dir);
@@ -116,7 +116,7 @@ describe('dipledger fit', () => {
       JSON.stringify({ ...doc, points: [{ dialSetting: '10 GHz', sweep: { file: 'nowhere.s2p' } }] }),
     );
     expect(await runCli(['--db', file, 'record', 'check2.json'], missing)).toBe(2);
-    expect(missing.stderr.join('\n')).toMatch(/points\[0\]\.sweep\.file: cannot read nowhere\.s2p/);
+    expect(missing.stderr.join('\n')).toMatch(/Point 1, sweep file: cannot read nowhere\.s2p/);
   });
 });
 
@@ -172,6 +172,6 @@ describe('dipledger budget with a swept point', () => {
     writeFileSync(path.join(dir, 'missing.json'), JSON.stringify({ ...budget, sweep: { file: 'nope.s2p' } }));
     const bad = io(dir);
     expect(await runCli(['--db', file, 'budget', 'missing.json'], bad)).toBe(2);
-    expect(bad.stderr.join('\n')).toContain('sweep.file');
+    expect(bad.stderr.join('\n')).toContain('Sweep file');
   });
 });

@@ -10,10 +10,11 @@ import { openApi } from '../../app/api/open';
 import { integrityReport as verifyIntegrity } from '../../app/api/ops/audit';
 import { openLabDb } from '../../db/store';
 import { clock, seed } from '../fixtures/lab';
+import { sized } from '../fixtures/test-level';
 
 const CHILD = path.join(path.dirname(new URL(import.meta.url).pathname), 'records-child.ts');
 
-const WRITES = 40;
+const WRITES = sized(40, 15);
 
 function start(mode: 'app' | 'cli', file: string) {
   const child = spawn(process.execPath, ['--import', 'tsx', CHILD, mode, file, String(WRITES)], {

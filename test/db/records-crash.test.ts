@@ -14,10 +14,11 @@ import { CSV_COLUMNS } from '../../app/api/service';
 import { openLabDb } from '../../db/store';
 import { integrityReport as verifyIntegrity } from '../../app/api/ops/audit';
 import { clock, seed } from '../fixtures/lab';
+import { sized } from '../fixtures/test-level';
 
 const CHILD = path.join(path.dirname(new URL(import.meta.url).pathname), 'records-child.ts');
-const CHECKS = 5000;
-const KILLS = 20;
+const CHECKS = sized(5000, 1000);
+const KILLS = sized(20, 4);
 
 /** mulberry32: a small seeded generator, so the kill moments are the same on every run. */
 function seeded(seedValue: number): () => number {

@@ -428,12 +428,13 @@ describe('verify checks the DCC against the signed record', () => {
     // The same record and identity, with a DCC whose error at the first point is 1 kHz off.
     const opened = openIssued(data, CERTIFICATE_TITLE, 'forged');
     opened.page.end('end');
-    const pdf = closeIssued(opened.page, opened, data, undefined, [forged]).pdf;
+    const pdf = closeIssued(opened.page, opened, data, [forged]).pdf;
     const r = verifyDocumentBytes(pdf);
     expect(r.ok).toBe(false);
-    expect(failures(r)).toEqual([
+    // (Unsigned and not what the record draws, it fails those checks too.)
+    expect(failures(r)).toContain(
       `${DCC_FINDING}: the DCC ${forged.name} differs from the signed record: point ${first.seq} error: the DCC says ${first.result.errorHz + 1000} Hz, the record ${first.result.errorHz} Hz`,
-    ]);
+    );
   });
 
   it('a check-sheet carries no DCC and verify does not ask for one', async () => {

@@ -7,9 +7,11 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { LabError } from '../../app/api/errors';
 import type { IssuedDocumentFile } from '../../app/api/contract-documents';
 import { renderCertificate } from '../../app/documents/certificate';
+import { checkPdfSignature } from '../../app/documents/pdf-signature';
+import { compareWithRedraw } from '../../app/documents/verify-render';
 import { standardsUsed } from '../../app/documents/model';
 import { readPdf } from '../../app/documents/pdfread';
-import { decodeRecord, type EmbeddedRecord } from '../../app/documents/record';
+import { decodeRecord, documentDataOf, type EmbeddedRecord } from '../../app/documents/record';
 import { demoLab, HAS_POPPLER, pdfText, renderPages, run, writeTemp, type DemoLab } from './fixture';
 
 let demo: DemoLab;
@@ -174,9 +176,16 @@ describe.skipIf(!HAS_POPPLER)('archival form', () => {
       issue: rec.document,
       suggestedInterval: null,
     };
+    // The record carries the rest of what the pages were drawn from: the same as the lab's.
+    const carried = documentDataOf(rec);
+    expect(carried).not.toBeNull();
     const again = renderCertificate(data);
-    expect(again.sha256).toBe(cert.sha256);
-    expect(again.pdf.equals(Buffer.from(cert.pdfBase64, 'base64'))).toBe(true);
+    expect(renderCertificate(carried ?? data).pdf.equals(again.pdf)).toBe(true);
+    // The issued file is that rendering signed: the same outside the signature's byte range.
+    const issued = Buffer.from(cert.pdfBase64, 'base64');
+    const redraw = compareWithRedraw(issued, rec, checkPdfSignature(issued).byteRange);
+    expect(redraw.ok).toBe(true);
+    expect(redraw.detail).toMatch(/same byte for byte outside the signature value/);
   });
 });
 
@@ -212,7 +221,7 @@ describe.skipIf(!HAS_POPPLER)('check-sheet and worksheet content', () => {
     expect(text).toMatch(/thermal [+-]\d+\.\d{2} ppm; air [+-]\d+\.\d{2} ppm/);
     expect(text).toMatch(/Reference source \(certificate\)/);
     expect(text).toMatch(/u_c = .* ν_eff = .* k = \d\.\d{2} .* U = /);
-    expect(text).toMatch(/probability of conformity \d+\.\d{2} % \(JCGM 106:2012\)/);
+    expect(text).toMatch(/probability of conformity (> 99\.9 %|< 0\.1 %|\d+\.\d %) \(JCGM 106:2012\)/);
     expect(text).toContain('performed the check');
     expect(text).toContain('reviewed the record');
     expect(text).toMatch(/End of check-sheet S-2026-\d{4} revision 1/);

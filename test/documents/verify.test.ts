@@ -5,7 +5,6 @@
 import { generateKeyPairSync, sign } from 'node:crypto';
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
-import forge from 'node-forge';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { IssuedDocumentFile } from '../../app/api/contract-documents';
 import { renderCertificate } from '../../app/documents/certificate';
@@ -17,6 +16,7 @@ import { verifyDocumentBytes } from '../../app/documents/verify';
 import { runCli, type CliIo } from '../../app/cli/main';
 import { clock } from '../fixtures/lab';
 import { ALBA, demoLab, HAS_POPPLER, run, writeTemp, type DemoLab } from './fixture';
+import { throwawayP12 } from './p12';
 
 let demo: DemoLab;
 let cert: IssuedDocumentFile;
@@ -244,30 +244,6 @@ describe('verify', () => {
   });
 });
 
-/** A throwaway self-signed certificate and key as PKCS#12, made with node-forge. */
-function throwawayP12(passphrase: string): Buffer {
-  forge.options.usePureJavaScript = true;
-  const keys = forge.pki.rsa.generateKeyPair({ bits: 2048, e: 0x10001 });
-  const c = forge.pki.createCertificate();
-  c.publicKey = keys.publicKey;
-  c.serialNumber = '01';
-  c.validity.notBefore = new Date('2026-01-01T00:00:00Z');
-  c.validity.notAfter = new Date('2036-01-01T00:00:00Z');
-  const attrs = [
-    { name: 'commonName', value: 'Kestrel Row test signer' },
-    { name: 'organizationName', value: 'Invented test laboratory' },
-  ];
-  c.setSubject(attrs);
-  c.setIssuer(attrs);
-  c.setExtensions([
-    { name: 'basicConstraints', cA: false },
-    { name: 'keyUsage', digitalSignature: true, nonRepudiation: true },
-  ]);
-  c.sign(keys.privateKey, forge.md.sha256.create());
-  const p12 = forge.pkcs12.toPkcs12Asn1(keys.privateKey, [c], passphrase, { algorithm: '3des' });
-  return Buffer.from(forge.asn1.toDer(p12).getBytes(), 'binary');
-}
-
 describe.skipIf(!HAS_POPPLER)('embedded PDF signature (PKCS#12)', () => {
   it('pdfsig reports it valid, and the lab still verifies the file', async () => {
     const p12 = throwawayP12('p12-passphrase');
@@ -282,9 +258,9 @@ describe.skipIf(!HAS_POPPLER)('embedded PDF signature (PKCS#12)', () => {
     expect(sig.out).toMatch(/Signature Validation: Signature is Valid\./);
     const r = await verify(Buffer.from(d.pdfBase64, 'base64'));
     expect(failures(r)).toEqual([]);
-    expect(r.findings.find((f) => f.check === 'embedded PDF signature')?.detail).toMatch(
-      /covering the whole file/,
-    );
+    expect(r.findings.find((f) => f.check === 'PDF signature')?.detail).toMatch(/covering the whole file/);
+    // The PKCS#12's certificate is kept as one the lab signs with.
+    expect(r.findings.find((f) => f.check === "PDF signature is the lab's")?.status).toBe('ok');
     // A changed byte breaks the PDF signature too.
     const changed = Buffer.from(d.pdfBase64, 'base64');
     changed[1500] = (changed[1500] as number) ^ 0x01;

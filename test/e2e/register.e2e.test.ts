@@ -15,6 +15,7 @@ import type { RunningServer } from '../../app/server/server';
 import { DEMO_LAB, DEMO_ROWS, fakeLabApi } from './fixtures/fakeLab';
 import { fleetApi, fleetAssetId } from './fixtures/registerFleet';
 import { RegisterPage } from './pages/RegisterPage';
+import { itFullBrowser } from '../fixtures/test-level';
 
 // Debian's Chromium; never a downloaded browser. The variable exists to try the skip path.
 const CHROMIUM = process.env.DIPLEDGER_CHROMIUM ?? '/usr/bin/chromium';
@@ -151,7 +152,7 @@ describe.skipIf(!haveChromium)(
       await expect.poll(() => register.assetIds()).toEqual(DUE_ORDER);
     });
 
-    it('mounts a window of rows for 2,000 meters and brings later rows on scrolling', async () => {
+    itFullBrowser('mounts a window of rows for 2,000 meters and brings later rows on scrolling', async () => {
       const fleet = new RegisterPage(await browser.newPage({ viewport: { width: 1280, height: 860 } }));
       try {
         await fleet.open(fleetServer.launchUrl);

@@ -26,6 +26,7 @@ import { CheckPage } from './pages/CheckPage';
 import { DocumentsPage } from './pages/DocumentsPage';
 import { RegisterPage } from './pages/RegisterPage';
 import { SettingsPage } from './pages/SettingsPage';
+import { itFullBrowser } from '../fixtures/test-level';
 
 const CHROMIUM = process.env.DIPLEDGER_CHROMIUM ?? '/usr/bin/chromium';
 const repoRoot = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..', '..');
@@ -157,54 +158,57 @@ describe.skipIf(!haveChromium)(
       await shot('ui-meter');
     });
 
-    it('records a check through the form, surviving a closed window, and opens it to be signed', async () => {
-      const meter = new MeterPage(page);
-      await meter.recordButton.click();
-      const form = new RecordCheckPage(page);
-      await page.getByTestId('meter-brief').waitFor();
-      expect(await form.references()).toEqual(PLAN_GHZ.map((g) => `${g} GHz`));
-      expect(await form.standard('STD-01').innerText()).toContain(
-        'certificate AFM-2026-9557, due 2027-09-14',
-      );
-      await form.performer('Alba Quennell');
-      await form.useStandard('STD-01');
-      await form.useStandard('STD-03');
-      await form.conditions('21.6', '1008.4', '46');
-      for (const [i, g] of PLAN_GHZ.entries()) {
-        const r = readings(g);
-        await form.typePoint(i, r.up, r.down, '4.1');
-      }
-      await expect.poll(() => form.liveVerdict(6).innerText(), { timeout: 10_000 }).toContain('Pass');
-      expect(await form.liveError(3).innerText()).toMatch(/^\+\d+\.\d ppm$/);
-      await expect.poll(() => form.draftStatus.innerText(), { timeout: 10_000 }).toMatch(/Draft \d+ saved/);
-      expect(await form.review.innerText()).toContain('7 of 7 points judged');
-      await shot('ui-record');
+    itFullBrowser(
+      'records a check through the form, surviving a closed window, and opens it to be signed',
+      async () => {
+        const meter = new MeterPage(page);
+        await meter.recordButton.click();
+        const form = new RecordCheckPage(page);
+        await page.getByTestId('meter-brief').waitFor();
+        expect(await form.references()).toEqual(PLAN_GHZ.map((g) => `${g} GHz`));
+        expect(await form.standard('STD-01').innerText()).toContain(
+          'certificate AFM-2026-9557, due 2027-09-14',
+        );
+        await form.performer('Alba Quennell');
+        await form.useStandard('STD-01');
+        await form.useStandard('STD-03');
+        await form.conditions('21.6', '1008.4', '46');
+        for (const [i, g] of PLAN_GHZ.entries()) {
+          const r = readings(g);
+          await form.typePoint(i, r.up, r.down, '4.1');
+        }
+        await expect.poll(() => form.liveVerdict(6).innerText(), { timeout: 10_000 }).toContain('Pass');
+        expect(await form.liveError(3).innerText()).toMatch(/^\+\d+\.\d ppm$/);
+        await expect.poll(() => form.draftStatus.innerText(), { timeout: 10_000 }).toMatch(/Draft \d+ saved/);
+        expect(await form.review.innerText()).toContain('7 of 7 points judged');
+        await shot('ui-record');
 
-      // Close the window and open it again: the draft comes back as typed.
-      const draftUrl = page.url();
-      expect(draftUrl).toMatch(/#\/record\/draft\/\d+$/);
-      await page.goto('about:blank');
-      await page.goto(draftUrl);
-      await form.pointRows.first().waitFor();
-      expect(await form.readingValues(3)).toEqual([...readings('10').up, ...readings('10').down]);
-      expect(await page.getByLabel('Temperature / °C').inputValue()).toBe('21.6');
-      expect((await lab.api.listDrafts()).length).toBe(1);
+        // Close the window and open it again: the draft comes back as typed.
+        const draftUrl = page.url();
+        expect(draftUrl).toMatch(/#\/record\/draft\/\d+$/);
+        await page.goto('about:blank');
+        await page.goto(draftUrl);
+        await form.pointRows.first().waitFor();
+        expect(await form.readingValues(3)).toEqual([...readings('10').up, ...readings('10').down]);
+        expect(await page.getByLabel('Temperature / °C').inputValue()).toBe('21.6');
+        expect((await lab.api.listDrafts()).length).toBe(1);
 
-      await form.recordButton.click();
-      // Recording ends on the check's own page, where it is signed and issued.
-      await page.waitForURL(/#\/check\/\d+$/);
-      checkUrl = page.url();
-      const check = new CheckPage(page);
-      await check.verdict.waitFor();
-      expect(await check.verdict.innerText()).toContain('Pass');
-      expect(await check.state.innerText()).toContain('not signed yet');
-      expect(await lab.api.listDrafts()).toEqual([]);
-      // Nobody in the demo lab has a signing key yet: the page says where to make one.
-      expect(await page.getByText('No one in this lab has a signing key yet').count()).toBe(1);
-      await shot('ui-check-unsigned');
-    });
+        await form.recordButton.click();
+        // Recording ends on the check's own page, where it is signed and issued.
+        await page.waitForURL(/#\/check\/\d+$/);
+        checkUrl = page.url();
+        const check = new CheckPage(page);
+        await check.verdict.waitFor();
+        expect(await check.verdict.innerText()).toContain('Pass');
+        expect(await check.state.innerText()).toContain('not signed yet');
+        expect(await lab.api.listDrafts()).toEqual([]);
+        // Nobody in the demo lab has a signing key yet: the page says where to make one.
+        expect(await page.getByText('No one in this lab has a signing key yet').count()).toBe(1);
+        await shot('ui-check-unsigned');
+      },
+    );
 
-    it('gives two people signing keys in the settings', async () => {
+    itFullBrowser('gives two people signing keys in the settings', async () => {
       await shell.go('Settings');
       const settings = new SettingsPage(page);
       await settings.people.waitFor();
@@ -219,53 +223,56 @@ describe.skipIf(!haveChromium)(
       await shot('ui-settings-people');
     });
 
-    it('signs the check (a wrong passphrase signs nothing), issues its certificate, and the register follows', async () => {
-      await page.goto(checkUrl);
-      const check = new CheckPage(page);
-      await check.verdict.waitFor();
-      await check.sign('Alba Quennell', 'not-her-passphrase', 'performed');
-      await check.problems.waitFor();
-      expect(await check.problems.innerText()).toContain('nothing was signed');
-      // That refusal was expected: the browser logs its HTTP 422, which is not a problem here.
-      const expected = (p: string) => /422|signCheck/.test(p);
-      problems.splice(0, problems.length, ...problems.filter((p) => !expected(p)));
-      await check.sign('Alba Quennell', ALBA_PASS, 'performed');
-      await check.signatures.waitFor();
-      await check.sign('Maren Holt-Ibsen', MAREN_PASS, 'reviewed');
-      await expect.poll(() => check.signatures.innerText()).toMatch(/reviewed by Maren Holt-Ibsen/);
-      expect(await check.signatures.innerText()).toMatch(/performed by Alba Quennell/);
-      expect(await check.state.innerText()).toContain('reviewed');
-      pdfFile = await check.issue('certificate', path.join(tmp, 'certificate.pdf'));
-      expect(await page.getByTestId('issued').innerText()).toMatch(/Issued certificate C-2026-\d{4}/);
-      await shot('ui-check-signed');
+    itFullBrowser(
+      'signs the check (a wrong passphrase signs nothing), issues its certificate, and the register follows',
+      async () => {
+        await page.goto(checkUrl);
+        const check = new CheckPage(page);
+        await check.verdict.waitFor();
+        await check.sign('Alba Quennell', 'not-her-passphrase', 'performed');
+        await check.problems.waitFor();
+        expect(await check.problems.innerText()).toContain('nothing was signed');
+        // That refusal was expected: the browser logs its HTTP 422, which is not a problem here.
+        const expected = (p: string) => /422|signCheck/.test(p);
+        problems.splice(0, problems.length, ...problems.filter((p) => !expected(p)));
+        await check.sign('Alba Quennell', ALBA_PASS, 'performed');
+        await check.signatures.waitFor();
+        await check.sign('Maren Holt-Ibsen', MAREN_PASS, 'reviewed');
+        await expect.poll(() => check.signatures.innerText()).toMatch(/reviewed by Maren Holt-Ibsen/);
+        expect(await check.signatures.innerText()).toMatch(/performed by Alba Quennell/);
+        expect(await check.state.innerText()).toContain('reviewed');
+        pdfFile = await check.issue('certificate', path.join(tmp, 'certificate.pdf'));
+        expect(await page.getByTestId('issued').innerText()).toMatch(/Issued certificate C-2026-\d{4}/);
+        await shot('ui-check-signed');
 
-      // The register shows the new check: its date, its verdict, and a due date a full interval on.
-      const register = new RegisterPage(page);
-      await shell.go('Register');
-      await register.rows.first().waitFor();
-      const row = await page.locator('tr[data-asset-id="WG-201"]').innerText();
-      expect(row).toContain('2026-12-01');
-      expect(row).toContain('Pass');
-      expect(row).not.toContain('overdue');
+        // The register shows the new check: its date, its verdict, and a due date a full interval on.
+        const register = new RegisterPage(page);
+        await shell.go('Register');
+        await register.rows.first().waitFor();
+        const row = await page.locator('tr[data-asset-id="WG-201"]').innerText();
+        expect(row).toContain('2026-12-01');
+        expect(row).toContain('Pass');
+        expect(row).not.toContain('overdue');
 
-      const meter = new MeterPage(page);
-      await page.locator('table.register').getByRole('link', { name: 'WG-201' }).click();
-      await meter.powerLimit.waitFor();
-      await expect.poll(() => meter.checkDates()).toContain('2026-12-01');
-      expect((await meter.checkDates())[0]).toBe('2026-12-01');
-      const newest = await meter.newestCheck();
-      expect(newest.join(' | ')).toMatch(
-        /2026-12-01 \| \d+ \| 1 \| .*Alba Quennell \| 7 \| .*Pass \| .*Pass/,
-      );
-      const detail = await lab.api.getMeter('WG-201');
-      expect(detail.register.lastCheckDate).toBe('2026-12-01');
-      await meter.waitForChart();
-      expect(await meter.chartText()).toContain('2026-12-01');
-      // U bars are drawn with a height, not only present: about ±35 ppm on a ±200 ppm scale.
-      expect(await meter.tallestErrorBarPx()).toBeGreaterThan(20);
-      await shot('ui-meter-after');
-      await meter.chart.screenshot({ path: path.join(outputDir, 'ui-meter-chart.png') });
-    });
+        const meter = new MeterPage(page);
+        await page.locator('table.register').getByRole('link', { name: 'WG-201' }).click();
+        await meter.powerLimit.waitFor();
+        await expect.poll(() => meter.checkDates()).toContain('2026-12-01');
+        expect((await meter.checkDates())[0]).toBe('2026-12-01');
+        const newest = await meter.newestCheck();
+        expect(newest.join(' | ')).toMatch(
+          /2026-12-01 \| \d+ \| 1 \| .*Alba Quennell \| 7 \| .*Pass \| .*Pass/,
+        );
+        const detail = await lab.api.getMeter('WG-201');
+        expect(detail.register.lastCheckDate).toBe('2026-12-01');
+        await meter.waitForChart();
+        expect(await meter.chartText()).toContain('2026-12-01');
+        // U bars are drawn with a height, not only present: about ±35 ppm on a ±200 ppm scale.
+        expect(await meter.tallestErrorBarPx()).toBeGreaterThan(20);
+        await shot('ui-meter-after');
+        await meter.chart.screenshot({ path: path.join(outputDir, 'ui-meter-chart.png') });
+      },
+    );
 
     it('shows the trend of a drifting meter, interval advice, dip depth, records and audit', async () => {
       const meter = new MeterPage(page);
@@ -303,7 +310,7 @@ describe.skipIf(!haveChromium)(
       await shot('ui-fit-for-use');
     });
 
-    it('attaches a swept trace to a point and draws the fitted dip over it', async () => {
+    itFullBrowser('attaches a swept trace to a point and draws the fitted dip over it', async () => {
       // An invented trace: a 2 dB dip at 9.3002 GHz, loaded Q 1500, seeded noise.
       const f0 = 9.3002e9;
       const w = f0 / 1500;
@@ -356,7 +363,7 @@ describe.skipIf(!haveChromium)(
       await expect.poll(() => lab.api.listDrafts()).toEqual([]);
     });
 
-    it('verifies the issued certificate, and catches a changed byte', async () => {
+    itFullBrowser('verifies the issued certificate, and catches a changed byte', async () => {
       await shell.go('Documents');
       const docs = new DocumentsPage(page);
       await docs.issued.waitFor();

@@ -1,5 +1,5 @@
 // Correction to reference conditions (app/engine/correction.ts, thermal.ts).
-import { describe, expect, it } from 'vitest';
+import { beforeEach, describe, expect, it } from 'vitest';
 import {
   correctToReference,
   correctedFrequencyHz,
@@ -68,7 +68,10 @@ describe('sensitivities by finite difference of f_c = f_read / g', () => {
     alphaPerK: brass,
   };
   const f = 9.3e9;
-  const s = correctionSensitivities(f, inputs, reference);
+  let s: ReturnType<typeof correctionSensitivities>;
+  beforeEach(() => {
+    s = correctionSensitivities(f, inputs, reference);
+  });
   const fcAt = (change: Partial<CorrectionInputs>) =>
     correctedFrequencyHz(f, { ...inputs, ...change }, reference);
 

@@ -1,5 +1,5 @@
 // One point from readings to verdict (app/engine/evaluate.ts), with hand-checkable numbers.
-import { describe, expect, it } from 'vitest';
+import { beforeEach, describe, expect, it } from 'vitest';
 import { evaluatePoint } from '../../app/engine/evaluate';
 import { toleranceHz } from '../../app/engine/conformity';
 import { coverageFactor } from '../../app/engine/distributions';
@@ -50,7 +50,10 @@ function line(result: PointResult, key: Contribution['key']): Contribution {
 }
 
 describe('direct-reading meter at 9.3 GHz, bench 3 K warm', () => {
-  const r = evaluatePoint(directSpec, warmBench, directPoint, { kind: 'simple' });
+  let r: PointResult;
+  beforeEach(() => {
+    r = evaluatePoint(directSpec, warmBench, directPoint, { kind: 'simple' });
+  });
 
   it('means per direction and their mean', () => {
     // up: (9.302 + 9.303 + 9.302)/3 = 9.302333 GHz; down: 9.304333 GHz; mean 9.303333 GHz.
@@ -127,7 +130,10 @@ describe('direct-reading meter at 9.3 GHz, bench 3 K warm', () => {
 });
 
 describe('budget sensitivities by finite difference of the whole evaluation', () => {
-  const base = evaluatePoint(directSpec, warmBench, directPoint, { kind: 'simple' });
+  let base: PointResult;
+  beforeEach(() => {
+    base = evaluatePoint(directSpec, warmBench, directPoint, { kind: 'simple' });
+  });
   const errorWith = (spec: MeterSpec, conditions: Conditions, point: PointInput = directPoint) =>
     evaluatePoint(spec, conditions, point, { kind: 'simple' }).errorHz;
 
@@ -186,7 +192,10 @@ const divisionsPoint: PointInput = {
 };
 
 describe('divisions meter through its chart', () => {
-  const r = evaluatePoint(divisionsSpec, atReference, divisionsPoint, { kind: 'non-binary' });
+  let r: PointResult;
+  beforeEach(() => {
+    r = evaluatePoint(divisionsSpec, atReference, divisionsPoint, { kind: 'non-binary' });
+  });
 
   it('means in divisions, frequency through the chart, no correction at reference conditions', () => {
     // up 33.71 div, down 33.75 div, mean 33.73 div -> 12 GHz - 80 MHz * 33.73 = 9.3016 GHz.

@@ -151,6 +151,12 @@ describe('checkInBand and formatFrequency', () => {
     expect(formatFrequency(0, 3)).toBe('0.00 Hz');
   });
 
+  it('a tiny positive frequency is written with a power of ten, never a crash (toFixed stops at 100 decimals)', () => {
+    expect(formatFrequency(1e-300, 3)).toBe('1.00 × 10⁻³⁰⁰ Hz');
+    expect(formatFrequency(Number.MIN_VALUE, 2)).toBe('4.9 × 10⁻³²⁴ Hz');
+    expect(formatFrequency(0.002, 2)).toBe('0.0020 Hz');
+  });
+
   it('its output parses back to the rounded value (property)', () => {
     fc.assert(
       fc.property(fc.double({ min: 1, max: 1e12, noNaN: true }), (f) => {

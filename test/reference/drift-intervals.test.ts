@@ -2,7 +2,7 @@
 // beside each check.
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
-import { describe, expect, it } from 'vitest';
+import { beforeEach, describe, expect, it } from 'vitest';
 import { fitLine, predict, projectedExit } from '../../app/engine/drift';
 import {
   METHOD_NAMES,
@@ -14,7 +14,7 @@ import {
 } from '../../app/engine/intervals';
 import { tQuantile } from '../../app/engine/distributions';
 
-const DATA = path.resolve(import.meta.dirname, '../../../shared/data');
+const DATA = path.resolve(import.meta.dirname, '../data');
 
 function relErr(a: number, b: number): number {
   return Math.abs(a - b) / Math.abs(b);
@@ -32,8 +32,14 @@ function norris(): { x: number; y: number }[] {
 }
 
 describe('straight-line fit: NIST StRD linear regression dataset Norris (certified values)', () => {
-  const pts = norris();
-  const fit = fitLine(pts); // equal weights, scale from the residuals, as the certified values
+  // Computed before each test, not at collection: an engine change that throws must fail a test,
+  // and the mutation run must see which test reached which code.
+  let pts: { x: number; y: number }[] = [];
+  let fit: ReturnType<typeof fitLine>;
+  beforeEach(() => {
+    pts = norris();
+    fit = fitLine(pts); // equal weights, scale from the residuals, as the certified values
+  });
 
   it('has the 36 observations of the dataset', () => {
     expect(pts).toHaveLength(36);
@@ -41,7 +47,7 @@ describe('straight-line fit: NIST StRD linear regression dataset Norris (certifi
   });
 
   it('reproduces B1, B0, their standard deviations and the residual SD to at least 9 significant digits', () => {
-    // Certified values, NIST StRD "Norris" (file header in ../shared/data/nist-strd/Norris.txt).
+    // Certified values, NIST StRD "Norris" (file header in test/data/nist-strd/Norris.txt).
     expect(relErr(fit.slope, 1.00211681802045)).toBeLessThan(1e-9);
     expect(relErr(fit.intercept, -0.262323073774029)).toBeLessThan(1e-9);
     expect(relErr(fit.uSlope, 0.429796848199937e-3)).toBeLessThan(1e-9);
@@ -62,11 +68,14 @@ describe('prediction interval: NIST/SEMATECH e-Handbook 4.5.1.2 (single new obse
   // Vining, Introduction to Linear Regression Analysis, eq. 2.45. Computed here from the Norris
   // certified residual SD and the data, independently of the fit's matrix terms.
   const pts = norris();
-  const fit = fitLine(pts);
   const n = pts.length;
   const xbar = pts.reduce((s, p) => s + p.x, 0) / n;
   const sxx = pts.reduce((s, p) => s + (p.x - xbar) ** 2, 0);
   const sigma = 0.884796396144373;
+  let fit: ReturnType<typeof fitLine>;
+  beforeEach(() => {
+    fit = fitLine(pts);
+  });
 
   for (const x0 of [0, 500, 1200]) {
     it(`matches the closed form at x0 = ${x0}`, () => {
@@ -94,7 +103,7 @@ describe('prediction interval: NIST/SEMATECH e-Handbook 4.5.1.2 (single new obse
 });
 
 describe('attributes method: NCSL International RP-1 table D-1 data, exponential reliability model', () => {
-  // Data: ../shared/data/ncsli-rp1/table-d1.txt (a transcription from a secondary source, as the
+  // Data: test/data/ncsli-rp1/table-d1.txt (a transcription from a secondary source, as the
   // file says). Observed in-tolerance counts are n x R rounded to whole calibrations.
   const rows = readFileSync(path.join(DATA, 'ncsli-rp1/table-d1.txt'), 'utf8')
     .split('\n')
@@ -105,7 +114,10 @@ describe('attributes method: NCSL International RP-1 table D-1 data, exponential
     const x = Math.round(n * r);
     for (let i = 0; i < n; i++) records.push({ interval: weeks, inTolerance: i < x });
   }
-  const fit = fitExponentialReliability(records);
+  let fit: ReturnType<typeof fitExponentialReliability>;
+  beforeEach(() => {
+    fit = fitExponentialReliability(records);
+  });
 
   it('reads 132 calibrations, 69 found in tolerance', () => {
     expect(rows).toHaveLength(8);

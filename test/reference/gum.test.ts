@@ -1,5 +1,5 @@
 // External-reference checks of the GUM budget arithmetic (JCGM 100:2008).
-import { describe, expect, it } from 'vitest';
+import { beforeEach, describe, expect, it } from 'vitest';
 import fc from 'fast-check';
 import {
   combine,
@@ -9,7 +9,7 @@ import {
   typeA,
 } from '../../app/engine/budget';
 import { coverageFactor } from '../../app/engine/distributions';
-import type { Contribution } from '../../app/engine/model';
+import type { Budget, Contribution } from '../../app/engine/model';
 
 function relativeLine(key: Contribution['key'], uPct: number, dof: number): Contribution {
   return makeContribution({
@@ -32,10 +32,17 @@ describe('JCGM 100:2008 G.4.1 example (Welch-Satterthwaite)', () => {
   // JCGM 100:2008 G.4.1, EXAMPLE (numbers from memory, not verified by search): Y = b X1 X2 X3,
   // relative standard uncertainties 0.25 % (N = 10, nu = 9), 0.57 % (N = 5, nu = 4) and
   // 0.82 % (N = 15, nu = 14); u_c/y = 1.03 %, nu_eff = 19.0, t_95(19) = 2.09, U_95 = 2.2 %.
-  const budget95 = combine(
-    [relativeLine('repeatability', 0.25, 9), relativeLine('setting', 0.57, 4), relativeLine('fit', 0.82, 14)],
-    0.95,
-  );
+  let budget95: Budget;
+  beforeEach(() => {
+    budget95 = combine(
+      [
+        relativeLine('repeatability', 0.25, 9),
+        relativeLine('setting', 0.57, 4),
+        relativeLine('fit', 0.82, 14),
+      ],
+      0.95,
+    );
+  });
 
   it('combines to u_c = 1.03 %', () => {
     expect(roundTo(budget95.combinedHz, 3)).toBe(1.03);

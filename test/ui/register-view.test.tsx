@@ -248,7 +248,7 @@ describe('RegisterPage', () => {
 
   it('keeps the table when the flags or the coverage cannot be loaded, and says so', async () => {
     const api = fakeLabApi({
-      listDue: () => Promise.reject(new LabError('internal', 'analysis failed')),
+      listRegister: () => Promise.reject(new LabError('internal', 'analysis failed')),
       coverage: () => Promise.reject(new LabError('internal', 'coverage failed')),
     });
     render(

@@ -95,7 +95,7 @@ describe('a meter page', () => {
     const row = (await screen.findAllByRole('button', { name: 'Points' }))[0]!;
     fireEvent.click(row);
     expect(await screen.findByText('+120.0 ppm')).toBeTruthy();
-    expect(screen.getAllByText('±60.0 ppm (2.00)').length).toBe(3);
+    expect(screen.getAllByText('±60 ppm (2.00)').length).toBe(3);
     expect(screen.getByText('8.5000 GHz')).toBeTruthy();
   });
 
@@ -407,7 +407,7 @@ describe('lab standards and settings', () => {
     );
     fireEvent.click(await screen.findByRole('button', { name: 'Save the settings' }));
     expect((await screen.findByRole('alert')).textContent).toContain(
-      'intervalMinMonths: 48 is not valid; expected at most intervalMaxMonths (36)',
+      'Shortest interval (months): 48 is not valid; expected at most Longest interval (months) (36)',
     );
   });
 });

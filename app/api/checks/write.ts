@@ -1,7 +1,7 @@
 // A prepared check as the rows written for it, and writing them (inside the caller's transaction).
 import { revisionRowData } from '../../../db/queries/checks';
 import { revisionRows, sweepRows } from './rows';
-import { writeCheckRows, type CheckWrite } from '../check-write';
+import { writeCheckRows, type CheckWrite } from '../../../db/queries/check-write';
 import type { LabSettings } from '../contract';
 import type { ServiceContext } from '../ops/context';
 import { requireLab } from '../ops/lookups';

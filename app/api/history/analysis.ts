@@ -100,7 +100,10 @@ function toHistoryCheck(c: HistoryCheckRow, tl: Timeline): HistoryCheck {
       phase: p.phase,
       errorPpm: p.errorPpm,
       uPpm: ppmOf(p.combinedHz, p.referenceHz),
-      tolerancePpm: ppmOf(p.toleranceHz, p.referenceHz),
+      // The stated tolerance: in ppm of the reading it was set at (reference + error), as the
+      // accuracy is stated. Over the reference it would read 1001 ppm for a 1000 ppm meter found
+      // 1000 ppm high, and move with each check's error.
+      tolerancePpm: ppmOf(p.toleranceHz, p.referenceHz + p.errorHz),
     })),
   };
 }

@@ -35,7 +35,7 @@ const DAYS_PER_YEAR = 365.25;
  * attributeRecordsOf below); test/api/stored-summaries.test.ts pins what the demo lab's
  * summaries hold to this number.
  */
-export const SUMMARY_FORMAT = 1;
+export const SUMMARY_FORMAT = 2;
 export const SUMMARIES_MADE_BY = `engine ${ENGINE_VERSION}, summaries ${SUMMARY_FORMAT}`;
 
 /** One register flag word; `exitDate` marks the drift-exit word, shown only on the days it is

@@ -20,7 +20,7 @@ import { revisionSignedContent } from '../../../db/queries/signed-content';
 import { signaturePayload } from '../../signing/payload';
 import type { OpGroup, ServiceContext } from './context';
 import type { IntegrityProblem, IntegrityReport, RecordsApi } from '../contract-records';
-import { fingerprintOf, sha256Hex, verifyBytes } from '../records-signing';
+import { fingerprintOf, sha256Hex, verifyBytes } from '../../signing/keys';
 import { parseWith } from '../issues';
 
 const AuditQuerySchema = z.object({

@@ -1,6 +1,5 @@
 // Checks: recording one, reading one back, judging a point without recording it, the air
 // correction, and the history CSV in and out.
-import { stringify as stringifyCsv } from 'csv-stringify/sync';
 import { checkInBand, refractivityN, waterVapourPressureHpa } from '../../engine';
 import type { PointResult, Reading } from '../../engine/model';
 import { allCheckIds, getCheck as readCheck } from '../../../db/queries/checks';
@@ -13,7 +12,8 @@ import { prepareSweepPoint } from '../checks/sweep-point';
 import { checkWriteOf, writeCheck } from '../checks/write';
 import type { AirResult, ImportResult } from '../contract';
 import { LabError, describe } from '../errors';
-import { CSV_COLUMNS, csvToDocuments } from '../import-csv';
+import { csvToDocuments } from '../import-csv';
+import { writeHistoryCsv, type HistoryCsvCheck } from '../../formats/history-csv';
 import { importWriterFor } from '../import-writer';
 import { frequencyOrIssue, Issues, parseWith } from '../issues';
 import { AirSchema, BudgetDocumentSchema } from '../schemas';
@@ -177,40 +177,15 @@ export function importCsv(ctx: ServiceContext, csvText: unknown) {
 }
 
 export function exportCsv(ctx: ServiceContext) {
-  const rows: (string | number)[][] = [CSV_COLUMNS.slice()];
-  for (const id of allCheckIds(ctx.db)) {
-    const c = readCheck(ctx.db, id);
-    if (!c) continue;
-    const meter = requireMeter(ctx, c.meterAssetId).meter;
-    for (const p of c.points) {
-      p.readings.forEach((r) => {
-        rows.push([
-          c.meterAssetId,
-          c.date,
-          c.performer,
-          c.standards.join(';'),
-          c.method,
-          c.conditions.temperatureC,
-          c.conditions.temperatureUncertaintyC,
-          c.conditions.pressureHpa,
-          c.conditions.pressureUncertaintyHpa,
-          c.conditions.humidityPct,
-          c.conditions.humidityUncertaintyPct,
-          c.adjusted ? 'yes' : 'no',
-          p.seq,
-          p.phase,
-          p.referenceHz,
-          p.standardAssetId,
-          r.value,
-          meter.dialKind === 'direct' ? 'Hz' : 'div',
-          r.direction,
-          p.dipDepthDb ?? '',
-          c.remarks,
-        ]);
-      });
+  function* checks(): Generator<HistoryCsvCheck> {
+    for (const id of allCheckIds(ctx.db)) {
+      const check = readCheck(ctx.db, id);
+      if (!check) continue;
+      const meter = requireMeter(ctx, check.meterAssetId).meter;
+      yield { check, readingUnit: meter.dialKind === 'direct' ? 'Hz' : 'div' };
     }
   }
-  return stringifyCsv(rows, { record_delimiter: '\r\n' });
+  return writeHistoryCsv(checks());
 }
 
 export const checkOps = {

@@ -2,13 +2,15 @@
 // (newest signed) revision of a check, the bench worksheet, the list of issued documents, and
 // verification of a received PDF against this lab's records.
 //
-// Rendering is synchronous (pdfkit writes the whole file during end()), so an issue without an
-// embedded PDF signature is one synchronous operation like every other write. With a PKCS#12
-// signature the signing library is asynchronous: that one path returns a promise, which the
-// service's async wrapper adopts (Promise.resolve); the number is re-checked inside the single
-// write transaction, so two overlapping issues can never share a number.
+// Rendering is synchronous (pdfkit writes the whole file during end()), but every issued
+// document is signed as a PDF (the lab's document key, or its PKCS#12), and the signing library
+// is asynchronous: an issue returns a promise, which the service's async wrapper adopts
+// (Promise.resolve); the number is re-checked inside the single write transaction, so two
+// overlapping issues can never share a number.
+import { X509Certificate } from 'node:crypto';
 import { z } from 'zod';
 import { appendAudit } from '../../../db/queries/audit';
+import { documentKeyFingerprints } from '../../../db/queries/document-keys';
 import { getCheck } from '../../../db/queries/checks';
 import {
   currentDocumentOfCheck,
@@ -40,17 +42,28 @@ import type {
   IntervalSuggestion,
   StandardUsed,
 } from '../../documents/model';
-import type { PadesOptions } from '../../documents/pades';
 import { sha256Hex } from '../../documents/record';
 import { signaturePayload, signaturesBefore } from '../../documents/signatures';
 import { verifyDocumentBytes, type IssuedEvidence, type LabEvidence } from '../../documents/verify';
 import { renderWorksheet } from '../../documents/worksheet';
 import { revisionSignedContent } from '../../../db/queries/signed-content';
+import type { DocumentSigner } from '../../signing/document-key';
 import type { OpGroup, ServiceContext } from './context';
+import {
+  ensureLabDocumentKey,
+  keepSigningCertificate,
+  labDocumentSigner,
+  pkcs12DocumentSigner,
+} from './document-keys';
 import { getTrend } from './history';
 import { requireLab, requireMeter } from './lookups';
 import type { Standard } from '../contract';
-import type { DocumentsApi, IssuedDocument, IssuedDocumentFile } from '../contract-documents';
+import type {
+  DocumentCertificate,
+  DocumentsApi,
+  IssuedDocument,
+  IssuedDocumentFile,
+} from '../contract-documents';
 import { LabError, describe } from '../errors';
 import { parseWith } from '../issues';
 
@@ -287,7 +300,7 @@ function write(
   ctx: ServiceContext,
   p: Prepared,
   r: RenderedDocument,
-  pdfSigned: boolean,
+  signer: DocumentSigner,
 ): IssuedDocumentFile {
   const { db } = ctx;
   const issue = p.data.issue;
@@ -309,7 +322,7 @@ function write(
       sha256: r.sha256,
       recordSha256: r.recordSha256,
       recordName: r.recordName,
-      pades: pdfSigned,
+      pades: true,
       intervalPrinted: p.data.suggestedInterval !== null,
       pdf: r.pdf,
       signatureIds: p.signatureIds,
@@ -332,6 +345,7 @@ function write(
         reason: issue.replaces?.reason ?? null,
       },
     });
+    keepSigningCertificate(ctx, signer, issue.issuedAt);
     return newId;
   })();
   const row = issuedDocumentById(db, id);
@@ -343,28 +357,13 @@ function issue(ctx: ServiceContext, kind: DocumentKind, raw: unknown): IssuedDoc
   const input = parseWith(IssueSchema, raw);
   const p = prepare(ctx, kind, input);
   const render = kind === 'certificate' ? renderCertificate : renderCheckSheet;
-  if (!input.pdfSignature) return write(ctx, p, render(p.data), false);
-
-  const pades: PadesOptions = {
-    p12: Buffer.from(input.pdfSignature.p12Base64, 'base64'),
-    passphrase: input.pdfSignature.passphrase,
-    reason: `${kind === 'certificate' ? 'Certificate' : 'Check-sheet'} ${p.data.issue.number} revision ${p.data.issue.revision} issued`,
-    name: p.data.lab.name,
-    location: p.data.lab.address || p.data.lab.name,
-    contactInfo: p.data.lab.address,
-    signingTime: new Date(p.data.issue.issuedAt),
-  };
-  const pending = signRendered(render(p.data, pades), pades).then(
-    (signed) => write(ctx, p, signed, true),
-    (e: unknown) => {
-      throw LabError.field(
-        'pdfSignature',
-        '(PKCS#12 file)',
-        'a PKCS#12 file and its passphrase',
-        `pdfSignature: the PKCS#12 file could not sign: ${e instanceof Error ? e.message : String(e)}; nothing was issued`,
-      );
-    },
-  );
+  const own = input.pdfSignature
+    ? pkcs12DocumentSigner(input.pdfSignature.p12Base64, input.pdfSignature.passphrase)
+    : undefined;
+  const pending = (async () => {
+    const signer = own ?? (await labDocumentSigner(ctx));
+    return write(ctx, p, await signRendered(render(p.data), signer), signer);
+  })();
   // See the note at the top of the file: the async wrapper adopts this promise.
   return pending as unknown as IssuedDocumentFile;
 }
@@ -390,6 +389,7 @@ function labEvidence(ctx: ServiceContext): LabEvidence {
   const keys = allKeys(db);
   return {
     labName: requireLab(ctx).name,
+    documentCertificates: documentKeyFingerprints(db),
     issued: (number, revision) => evidence(findIssuedDocument(db, number, revision)),
     issuedWithSha256: (sha) => evidence(findIssuedDocumentBySha256(db, sha)),
     keysOf(name) {
@@ -451,10 +451,27 @@ export function verifyDocument(ctx: ServiceContext, input: Parameters<DocumentsA
   return verifyDocumentBytes(bytes, labEvidence(ctx));
 }
 
+/** The certificate the lab signs documents with, made (and audited) if the lab has none. */
+export function documentCertificate(ctx: ServiceContext) {
+  const pending = ensureLabDocumentKey(ctx).then((k) => {
+    const c = new X509Certificate(k.certificatePem);
+    return {
+      fingerprint: k.fingerprint,
+      subject: c.subject.replace(/\n/g, ', '),
+      validFrom: new Date(c.validFrom).toISOString(),
+      validTo: new Date(c.validTo).toISOString(),
+      certificatePem: k.certificatePem,
+    };
+  });
+  // See the note at the top of the file: the async wrapper adopts this promise.
+  return pending as unknown as DocumentCertificate;
+}
+
 export const documentOps = {
   issueCertificate,
   issueSheet,
   worksheet,
   listDocuments,
   verifyDocument,
+  documentCertificate,
 } satisfies OpGroup<keyof DocumentsApi>;

@@ -1,18 +1,13 @@
 // The history group: a meter's trend page, whether meters are fit for use at a frequency (with
 // the correction and uncertainty there), and the lab's band coverage. Read-only.
-import { coverageFactor, formatFrequency, parseFrequencyHz } from '../../engine';
+import { formatFrequency, parseFrequencyHz } from '../../engine';
+import { correctionAt, slopeAt, useBudget, type UsePoint } from '../../engine/fitness';
+import { coverageSegments } from '../../engine/coverage';
 import { listMeterRecords, registerRows } from '../../../db/queries/meters';
 import { certificatesUsed, pointResults, type HistoryPointRow } from '../../../db/queries/history';
 import { daysBetween } from '../clock';
 import type { LabSettings, Meter, RegisterRow } from '../contract';
-import type {
-  CoverageReport,
-  CoverageSegment,
-  HistoryApi,
-  TrendReport,
-  UseAnswer,
-  UseReport,
-} from '../contract-history';
+import type { CoverageReport, HistoryApi, TrendReport, UseAnswer, UseReport } from '../contract-history';
 import { LabError, describe } from '../errors';
 import {
   analyseMeter,
@@ -86,63 +81,23 @@ function trendReport(ctx: ServiceContext, a: MeterAnalysis, settings: LabSetting
   };
 }
 
-/** Linear interpolation along the band of the newest check's errors at `hz`. */
-function correctionAt(ctx: ServiceContext, points: HistoryPointRow[], hz: number) {
-  const sorted = [...points].sort((a, b) => a.referenceHz - b.referenceHz);
-  // The reference source's line of each budget is not among the numbers history reads: the
-  // stored results of these few points are read whole.
+/** The newest check's points as the engine's fitness takes them: ppm of each reference, with the
+ * reference source's line of each budget (not among the numbers history reads: the stored
+ * results of these few points are read whole). */
+function usePoints(ctx: ServiceContext, points: HistoryPointRow[]): UsePoint[] {
   const results = pointResults(
     ctx.db,
     points.map((p) => p.pointId),
   );
-  const ppm = (p: HistoryPointRow) => ({
-    e: p.errorPpm,
-    u: ppmOf(p.combinedHz, p.referenceHz),
-    uRef: ppmOf(
+  return points.map((p) => ({
+    frequencyHz: p.referenceHz,
+    errorPpm: p.errorPpm,
+    uPpm: ppmOf(p.combinedHz, p.referenceHz),
+    uReferencePpm: ppmOf(
       results.get(p.pointId)?.budget.contributions.find((c) => c.key === 'reference')?.contributionHz ?? 0,
       p.referenceHz,
     ),
-  });
-  const first = sorted[0];
-  const last = sorted[sorted.length - 1];
-  if (!first || !last) return null;
-  const one = (p: HistoryPointRow, basis: string) => {
-    const v = ppm(p);
-    return { e: v.e, u: v.u, uInterp: 0, uRead: Math.sqrt(Math.max(v.u ** 2 - v.uRef ** 2, 0)), basis };
-  };
-  if (hz <= first.referenceHz)
-    return one(
-      first,
-      `nearest check frequency ${formatFrequency(first.referenceHz, 6)} (below it, not extrapolated)`,
-    );
-  if (hz >= last.referenceHz)
-    return one(
-      last,
-      `nearest check frequency ${formatFrequency(last.referenceHz, 6)} (above it, not extrapolated)`,
-    );
-  for (let i = 1; i < sorted.length; i++) {
-    const lo = sorted[i - 1] as HistoryPointRow;
-    const hi = sorted[i] as HistoryPointRow;
-    if (hz < lo.referenceHz || hz > hi.referenceHz) continue;
-    if (hz === lo.referenceHz) return one(lo, `check frequency ${formatFrequency(lo.referenceHz, 6)}`);
-    if (hz === hi.referenceHz) return one(hi, `check frequency ${formatFrequency(hi.referenceHz, 6)}`);
-    const a = (hz - lo.referenceHz) / (hi.referenceHz - lo.referenceHz);
-    const l = ppm(lo);
-    const h = ppm(hi);
-    return {
-      e: (1 - a) * l.e + a * h.e,
-      // Neighbouring points share the reference and most conditions: taken as fully correlated.
-      u: (1 - a) * l.u + a * h.u,
-      // Between check frequencies the error is not known exactly: rectangular, half-width half
-      // the difference of the neighbours (common practice).
-      uInterp: Math.abs(h.e - l.e) / 2 / Math.sqrt(3),
-      uRead:
-        (1 - a) * Math.sqrt(Math.max(l.u ** 2 - l.uRef ** 2, 0)) +
-        a * Math.sqrt(Math.max(h.u ** 2 - h.uRef ** 2, 0)),
-      basis: `interpolated between ${formatFrequency(lo.referenceHz, 6)} and ${formatFrequency(hi.referenceHz, 6)}`,
-    };
-  }
-  return null;
+  }));
 }
 
 function useAnswer(ctx: ServiceContext, a: MeterAnalysis, hz: number): UseAnswer {
@@ -194,43 +149,37 @@ function useAnswer(ctx: ServiceContext, a: MeterAnalysis, hz: number): UseAnswer
       else if (f.severity !== 'info') warnings.push(f.message);
     }
     const inBand = hz >= m.minHz && hz <= m.maxHz;
-    const c = inBand ? correctionAt(ctx, eff, hz) : null;
+    const c = inBand ? correctionAt(usePoints(ctx, eff), hz) : null;
     if (c) {
       // Drift since the last check, from the fits at the neighbouring frequencies or the pooled model.
       const dt = daysBetween(newest.date, today) / DAYS_PER_YEAR;
-      const slope = slopeAt(a, hz);
-      const driftPpm = slope === null ? 0 : slope * dt;
-      const uDrift = Math.abs(driftPpm) / Math.sqrt(3);
-      if (slope !== null && Math.abs(driftPpm) > 0.1 * c.u && dt > 0)
+      const slope = slopeAt(
+        (a.drift?.frequencies ?? []).map((f) => ({
+          frequencyHz: f.frequencyHz,
+          slopePpmPerYear: f.fit?.slope ?? null,
+        })),
+        a.drift?.pooled?.driftPpmPerYear ?? null,
+        hz,
+      );
+      const b = useBudget(c, slope, dt);
+      if (slope !== null && Math.abs(b.driftPpm) > 0.1 * c.uPpm && dt > 0)
         warnings.push(
-          `Predicted drift since the last check: ${driftPpm >= 0 ? '+' : ''}${driftPpm.toFixed(1)} ppm (${slope.toFixed(1)} ppm per year over ${dt.toFixed(2)} years); included in the uncertainty, not in the correction.`,
+          `Predicted drift since the last check: ${b.driftPpm >= 0 ? '+' : ''}${b.driftPpm.toFixed(1)} ppm (${slope.toFixed(1)} ppm per year over ${dt.toFixed(2)} years); included in the uncertainty, not in the correction.`,
         );
-      const uCorr = Math.hypot(c.u, c.uInterp);
-      const lines = [
-        { label: 'correction from the last check (its combined uncertainty)', uPpm: c.u },
-        { label: 'interpolation between check frequencies', uPpm: c.uInterp },
-        {
-          label: 'your reading (repeatability, resolution, setting, conditions as at the check)',
-          uPpm: c.uRead,
-        },
-        { label: 'drift since the last check (rectangular)', uPpm: uDrift },
-      ];
-      const uc = Math.sqrt(lines.reduce((s, l) => s + l.uPpm ** 2, 0));
-      const k = coverageFactor(Infinity);
       correction = {
-        correctionPpm: -c.e,
-        correctionHz: (-c.e * hz) / 1e6,
-        uPpm: uCorr,
-        uHz: (uCorr * hz) / 1e6,
+        correctionPpm: b.correctionPpm,
+        correctionHz: (b.correctionPpm * hz) / 1e6,
+        uPpm: b.uCorrectionPpm,
+        uHz: (b.uCorrectionPpm * hz) / 1e6,
         fromCheckDate: newest.date,
         basis: c.basis,
       };
       uncertainty = {
-        combinedHz: (uc * hz) / 1e6,
-        expandedHz: (k * uc * hz) / 1e6,
-        expandedPpm: k * uc,
-        coverageFactor: k,
-        lines,
+        combinedHz: (b.combinedPpm * hz) / 1e6,
+        expandedHz: (b.coverageFactor * b.combinedPpm * hz) / 1e6,
+        expandedPpm: b.expandedPpm,
+        coverageFactor: b.coverageFactor,
+        lines: b.lines,
       };
     }
   }
@@ -248,23 +197,6 @@ function useAnswer(ctx: ServiceContext, a: MeterAnalysis, hz: number): UseAnswer
     daysToDue: r.daysToDue,
     warnings,
   };
-}
-
-/** Drift rate (ppm per year) at a frequency: interpolated from the per-frequency fits, else pooled. */
-function slopeAt(a: MeterAnalysis, hz: number): number | null {
-  const fitted = a.drift?.frequencies.filter((f) => f.fit) ?? [];
-  if (fitted.length === 0) return a.drift?.pooled?.driftPpmPerYear ?? null;
-  let lo = fitted[0];
-  let hi = fitted[fitted.length - 1];
-  for (const f of fitted) {
-    if (f.frequencyHz <= hz) lo = f;
-    if (f.frequencyHz >= hz && hi && f.frequencyHz < hi.frequencyHz) hi = f;
-  }
-  if (!lo?.fit || !hi?.fit) return null;
-  if (hi.frequencyHz === lo.frequencyHz || hz <= lo.frequencyHz) return lo.fit.slope;
-  if (hz >= hi.frequencyHz) return hi.fit.slope;
-  const t = (hz - lo.frequencyHz) / (hi.frequencyHz - lo.frequencyHz);
-  return (1 - t) * lo.fit.slope + t * hi.fit.slope;
 }
 
 function parseFrequencyOr400(value: unknown): number {
@@ -340,48 +272,25 @@ export function coverage(ctx: ServiceContext) {
       row.daysToDue >= 0
     );
   };
-  const cuts = new Set<number>([COVERAGE_FROM_HZ, COVERAGE_TO_HZ]);
-  for (const m of meters) {
-    for (const f of [m.minHz, m.maxHz]) if (f > COVERAGE_FROM_HZ && f < COVERAGE_TO_HZ) cuts.add(f);
-  }
-  const edges = [...cuts].sort((a, b) => a - b);
-  const segments: CoverageSegment[] = [];
-  for (let i = 1; i < edges.length; i++) {
-    const from = edges[i - 1] as number;
-    const to = edges[i] as number;
-    const cover = meters.filter((m) => m.minHz <= from && m.maxHz >= to);
-    const ok = cover.filter(usable).map((m) => m.assetId);
-    const names = cover.map((m) => m.assetId);
-    const prev = segments[segments.length - 1];
-    if (prev && prev.meters.join() === names.join() && prev.usable.join() === ok.join()) {
-      prev.toHz = to;
-      continue;
-    }
-    const unusable = cover
-      .filter((m) => !usable(m))
-      .map((m) => {
-        const row = rows.find((r) => r.assetId === m.assetId);
-        const why =
-          m.state !== 'in-service'
-            ? m.state
-            : row?.daysToDue === null || row?.daysToDue === undefined
-              ? 'never checked'
-              : 'overdue';
-        return `${m.assetId} ${why}`;
-      });
-    segments.push({
-      fromHz: from,
-      toHz: to,
-      meters: names,
-      usable: ok,
-      gap: ok.length === 0,
-      note: ok.length
-        ? `covered by ${ok.join(', ')}${unusable.length ? ` (also ${unusable.join(', ')})` : ''}`
-        : names.length
-          ? `gap: only ${unusable.join(', ')}`
-          : 'gap: no meter',
-    });
-  }
+  const why = (m: Meter) => {
+    const row = rows.find((r) => r.assetId === m.assetId);
+    return m.state !== 'in-service'
+      ? m.state
+      : row?.daysToDue === null || row?.daysToDue === undefined
+        ? 'never checked'
+        : 'overdue';
+  };
+  const segments = coverageSegments(
+    meters.map((m) => ({
+      assetId: m.assetId,
+      minHz: m.minHz,
+      maxHz: m.maxHz,
+      usable: usable(m),
+      why: why(m),
+    })),
+    COVERAGE_FROM_HZ,
+    COVERAGE_TO_HZ,
+  );
   return {
     fromHz: COVERAGE_FROM_HZ,
     toHz: COVERAGE_TO_HZ,

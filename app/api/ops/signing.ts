@@ -39,7 +39,7 @@ import {
   signBytes,
   unsealPrivateKey,
   verifyBytes,
-} from '../records-signing';
+} from '../../signing/keys';
 import { LabError, describe } from '../errors';
 import { parseWith } from '../issues';
 

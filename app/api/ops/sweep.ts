@@ -29,7 +29,13 @@ function niceStep(range: number): number {
   return 10 * p;
 }
 
-export function fitTrace(_ctx: ServiceContext, input: Parameters<SweepApi['fitTrace']>[0]) {
+export function fitTrace(_ctx: ServiceContext, input: Parameters<SweepApi['fitTrace']>[0]): TraceFit {
+  return fitTraceOf(input);
+}
+
+/** The fit of one sweep on its own: needs no lab (nothing is read or stored), so the command
+ * line's `fit` calls it without opening one. Refuses bad input as the operation does. */
+export function fitTraceOf(input: unknown): TraceFit {
   const doc = parseWith(FitTraceSchema, input);
   const issues = new Issues();
   const read = sweepTrace(issues, doc, 'sweep');

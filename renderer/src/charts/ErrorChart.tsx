@@ -20,6 +20,7 @@ import type { Phase } from '../../../app/engine/model';
 import { VERDICT_LABEL, formatPpm, tolerancePpm } from '../shared/format';
 import { useWidth } from '../shared/useWidth';
 import './charts.css';
+import { decimal, plain, roundTicks } from '../../../app/model/quantity-format';
 
 /** Mid-tone colours readable on light and dark paper; shapes carry the same distinction. */
 const SERIES = [
@@ -63,14 +64,9 @@ export function errorSeries(checks: CheckRecord[]): ErrorSeries[] {
   return out;
 }
 
-/** Ticks at a round step across [lo, hi]. */
+/** Ticks at round values, 1, 2 or 5 × 10ⁿ apart, across [lo, hi]. */
 export function niceTicks(lo: number, hi: number, target = 8): number[] {
-  const raw = (hi - lo) / target;
-  const p = 10 ** Math.floor(Math.log10(raw));
-  const step = ([1, 2, 2.5, 5, 10].find((m) => m * p >= raw) ?? 10) * p;
-  const out: number[] = [];
-  for (let t = Math.ceil(lo / step) * step; t <= hi + step * 1e-9; t += step) out.push(Number(t.toFixed(9)));
-  return out;
+  return roundTicks(lo, hi, target);
 }
 
 export function ErrorChart({ meter, checks }: { meter: Meter; checks: CheckRecord[] }) {
@@ -131,14 +127,15 @@ export function ErrorChart({ meter, checks }: { meter: Meter; checks: CheckRecor
           domain={[lo - pad, hi + pad]}
           allowDataOverflow
           ticks={niceTicks(lo, hi, 10)}
-          tickFormatter={(v: number) => String(Number(v.toFixed(2)))}
+          tickFormatter={(v: number) => plain(v, 6)}
           label={{ value: 'reference frequency / GHz', position: 'insideBottom', offset: -16 }}
         />
         <YAxis
           type="number"
           domain={[-yMax, yMax]}
           allowDataOverflow
-          tickFormatter={(v: number) => String(v)}
+          ticks={roundTicks(-yMax, yMax, 8)}
+          tickFormatter={(v: number) => plain(v, 6)}
           width={64}
           label={{ value: 'error / ppm', angle: -90, position: 'insideLeft', offset: 0, dy: 30 }}
         />
@@ -210,7 +207,7 @@ export function ErrorChart({ meter, checks }: { meter: Meter; checks: CheckRecor
         {limitsHidden && (
           <strong data-testid="limits-hidden">
             {' '}
-            The tolerance limits, ±{tMax.toFixed(0)} ppm, lie beyond this scale: every error shown is inside
+            The tolerance limits, ±{decimal(tMax, 0)} ppm, lie beyond this scale: every error shown is inside
             them.
           </strong>
         )}
@@ -237,6 +234,6 @@ function PointTip({ active, payload }: { active?: boolean; payload?: { payload?:
 export function niceCeil(x: number): number {
   if (!(x > 0)) return 1;
   const p = 10 ** Math.floor(Math.log10(x));
-  for (const m of [1, 2, 2.5, 5, 10]) if (m * p >= x) return m * p;
+  for (const m of [1, 2, 5, 10]) if (m * p >= x) return m * p;
   return 10 * p;
 }

@@ -25,6 +25,7 @@ import { WorksheetButton } from './WorksheetButton';
 import { messageOf, useLoad } from '../shared/useLoad';
 import { useLab } from '../lab/LabContext';
 import './meter.css';
+import { decimal, significant } from '../../../app/model/quantity-format';
 
 /** How many of the newest checks the chart compares. */
 export const CHART_CHECKS = 3;
@@ -348,10 +349,10 @@ function CheckPoints({ checkId }: { checkId: number }) {
               <td className="num">{formatHz(p.result.indicatedHz, 6)}</td>
               <td className="num">{formatPpm(p.result.errorPpm)}</td>
               <td className="num">
-                ±{p.result.expandedPpm.toFixed(1)} ppm ({p.result.budget.coverageFactor.toFixed(2)})
+                ±{significant(p.result.expandedPpm, 2)} ppm ({decimal(p.result.budget.coverageFactor, 2)})
               </td>
               <td className="num">
-                ±{((p.result.decision.toleranceHz / p.referenceHz) * 1e6).toFixed(0)} ppm
+                ±{decimal((p.result.decision.toleranceHz / Math.abs(p.result.correctedHz)) * 1e6, 0)} ppm
               </td>
               <td>
                 <VerdictCell v={p.result.decision.verdict} />

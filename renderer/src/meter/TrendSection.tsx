@@ -24,6 +24,7 @@ import '../charts/charts.css';
 import { useWidth } from '../shared/useWidth';
 import { useLab } from '../lab/LabContext';
 import { StopIcon } from '../shared/Icons';
+import { formatProbability } from '../../../app/model/quantity-format';
 
 /** The stop flag's symbol is drawn (StopIcon): the no-entry character is missing from many fonts. */
 export const SEVERITY_LABEL: Record<HistoryFlag['severity'], { symbol: string; word: string }> = {
@@ -303,12 +304,8 @@ export function roundUp(x: number): number {
   return Math.ceil(x / step) * step;
 }
 
-/** A probability in per cent, without claiming certainty the model cannot give. */
-export function formatProbability(p: number): string {
-  if (p > 0.999) return '> 99.9 %';
-  if (p < 0.001) return '< 0.1 %';
-  return `${(p * 100).toFixed(1)} %`;
-}
+/** A probability in per cent, one wording everywhere (app/model/quantity-format). */
+export { formatProbability };
 
 function TrendTip({ active, payload }: { active?: boolean; payload?: { payload?: unknown }[] }) {
   const p = payload?.find((x) => x.payload && typeof (x.payload as TrendRow).errorPpm === 'number')

@@ -1,7 +1,6 @@
 // The register's data in one place: the lab and its meters, their drift and health flags, and
 // the band coverage, each loading on its own so the table shows first. The flags come from the
-// due list at its widest horizon (every meter not withdrawn); an operation named for the
-// register replaces that call here, and only here.
+// register's own operation (listRegister: every meter, withdrawn ones too).
 import { useEffect, useMemo, useState } from 'react';
 import type { LabApi, LabSettings, RegisterRow } from '../../../app/api/contract';
 import type { CoverageReport } from '../../../app/api/contract-history';
@@ -9,15 +8,12 @@ import { useLab } from '../lab/LabContext';
 import { messageOf, useLoad } from '../shared/useLoad';
 import type { Load as Loading } from '../shared/useLoad';
 
-/** The due list's horizon, its largest: every meter not withdrawn, with its flags. */
-const FLAGS_WITHIN_DAYS = 3650;
-
 type Flags = NonNullable<RegisterRow['flags']>;
 
 /** Each meter's flags by asset id. */
 export async function registerFlags(api: LabApi): Promise<Map<string, Flags>> {
-  const due = await api.listDue({ withinDays: FLAGS_WITHIN_DAYS });
-  return new Map(due.map((r) => [r.assetId, r.flags ?? []]));
+  const entries = await api.listRegister();
+  return new Map(entries.map((r) => [r.assetId, r.flags]));
 }
 
 export type RegisterLoad =

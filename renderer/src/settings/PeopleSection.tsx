@@ -8,7 +8,7 @@ import type { FieldIssue } from '../../../app/api/errors';
 import { messageOf, useLoad } from '../shared/useLoad';
 import { useLab } from '../lab/LabContext';
 
-/** As the service requires for a new key (records-signing.ts). */
+/** As the service requires for a new key (app/signing/keys.ts). */
 const MIN_PASSPHRASE = 10;
 const ROLES: Person['role'][] = ['technician', 'reviewer', 'administrator'];
 

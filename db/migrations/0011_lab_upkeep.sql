@@ -1,4 +1,4 @@
--- 0010: keeping a lab up to date. A meter's specification is edited as a numbered revision with
+-- 0011: keeping a lab up to date. A meter's specification is edited as a numbered revision with
 -- its reason and the day it takes effect (the values before and after kept whole, never edited);
 -- a standard has a kind and a frequency range, records the as-found deviation its certificate
 -- reports, and may be retired with a reason; a person may leave (keeps their signatures, signs no

@@ -1,1 +1,0 @@
-export * from '../../db/queries/check-write';
