@@ -125,7 +125,7 @@ describe('refusals exit 2 and leave the lab file byte-for-byte unchanged', () =>
       'a plan frequency outside the band',
       JSON.stringify({ ...meter, plan: ['9 GHz'] }),
       ['meter', 'add', 'bad.json'],
-      /plan\[0\]/,
+      /plan 1: 9.00000 GHz is out/,
     ],
     [
       'a duplicate asset id',
