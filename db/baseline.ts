@@ -1,4 +1,4 @@
-// The one-time baseline of migration 0012: a lab file written before entries carried entity
+// The one-time baseline of migration 0013: a lab file written before entries carried entity
 // digests gets one audited "baseline" entry per entity present, committing to its content as the
 // migration found it, so `integrity` has a digest to compare every entity with from then on.
 // What was changed outside the program before the baseline cannot be told from it; the
@@ -7,7 +7,7 @@ import type Database from 'better-sqlite3';
 import { appendAuditEntry } from './audit-hash';
 import { allEntityDigests } from './entity-state';
 
-export const BASELINE_ACTOR = 'dipledger (migration 0012)';
+export const BASELINE_ACTOR = 'dipledger (migration 0013)';
 
 export function writeBaseline(db: Database.Database, at: string): number {
   const { digests } = allEntityDigests(db);

@@ -25,11 +25,12 @@ const FILES: ReadonlyArray<readonly [number, string]> = [
   [9, '0009_cheaper_writes.sql'],
   [10, '0010_document_keys.sql'],
   [11, '0011_meter_uses.sql'],
-  [12, '0012_entity_state.sql'],
+  [12, '0012_lab_upkeep.sql'],
+  [13, '0013_entity_state.sql'],
 ];
 
 const AFTER: ReadonlyMap<number, NonNullable<Migration['after']>> = new Map([
-  [12, (db: Database.Database, at: string) => void writeBaseline(db, at)],
+  [13, (db: Database.Database, at: string) => void writeBaseline(db, at)],
 ]);
 
 function load(version: number, file: string): Migration {

@@ -30,6 +30,7 @@ import { DOCUMENTS_OPERATIONS, type DocumentsApi } from './contract-documents';
 import { DCC_OPERATIONS, type DccApi } from './contract-dcc';
 import { REGISTER_OPERATIONS, type RegisterApi } from './contract-register';
 import { IMPACT_OPERATIONS, type ImpactApi } from './contract-impact';
+import { UPKEEP_OPERATIONS, type UpkeepApi } from './contract-upkeep';
 
 export type {
   LabSettings,
@@ -67,7 +68,8 @@ export type LabApi = CoreApi &
   DocumentsApi &
   DccApi &
   RegisterApi &
-  ImpactApi;
+  ImpactApi &
+  UpkeepApi;
 
 /** The foundation: register, meters, standards, people, checks, computations, CSV. */
 export interface CoreApi {
@@ -133,4 +135,5 @@ export const OPERATIONS = {
   ...DCC_OPERATIONS,
   ...REGISTER_OPERATIONS,
   ...IMPACT_OPERATIONS,
+  ...UPKEEP_OPERATIONS,
 } as const satisfies Record<OperationName, 'read' | 'write'>;

@@ -29,7 +29,7 @@ export const DecisionRuleSchema = z.discriminatedUnion(
   'expected a decision rule: simple, guarded, guarded-fixed or non-binary',
 );
 
-export const LabSettingsSchema = z.object({
+export const LabSettingsSchema = z.strictObject({
   name: nonEmpty('the lab name'),
   address: z.string().default(''),
   accreditation: z.string().default(''),
@@ -53,7 +53,7 @@ const ChartPointSchema = z.object({
   frequency: FrequencyText,
 });
 
-export const MeterSchema = z.object({
+export const MeterSchema = z.strictObject({
   assetId: nonEmpty('an asset id').pipe(z.string().max(40)),
   description: z.string().default(''),
   construction: z.enum(['coaxial', 'waveguide'], 'expected "coaxial" or "waveguide"'),
@@ -61,7 +61,12 @@ export const MeterSchema = z.object({
   min: FrequencyText,
   max: FrequencyText,
   dialKind: z.enum(['direct', 'divisions'], 'expected "direct" or "divisions"'),
-  accuracyRelPpm: finite('relative accuracy in ppm').pipe(z.number().gt(0).max(100000)),
+  accuracyRelPpm: finite('relative accuracy in ppm').pipe(
+    z
+      .number()
+      .gt(0, 'expected a relative accuracy above 0 ppm')
+      .max(1e6, 'expected a relative accuracy of at most 1,000,000 ppm (100 %)'),
+  ),
   accuracyAbs: FrequencyText.default('0 Hz'),
   /** Dial resolution: a frequency for direct-reading meters, a number of divisions otherwise. */
   resolution: z.union([z.string(), z.number()]),
@@ -83,7 +88,11 @@ export const MeterSchema = z.object({
   maxInputPowerW: finite('maximum input power in W').pipe(z.number().gt(0)).default(1),
   location: z.string().default(''),
   state: z.enum(['in-service', 'quarantined', 'withdrawn']).default('in-service'),
-  intervalMonths: z.int('expected whole months').min(1).max(240).default(12),
+  intervalMonths: z
+    .int('expected whole months')
+    .min(1, 'expected an interval of at least 1 month')
+    .max(240, 'expected an interval of at most 240 months')
+    .default(12),
   plan: z.array(FrequencyText).default([]),
 });
 export type MeterInput = z.input<typeof MeterSchema>;
@@ -95,7 +104,7 @@ export const MeterStateSchema = z.object({
 });
 export type MeterStateInput = z.input<typeof MeterStateSchema>;
 
-export const StandardCertificateSchema = z.object({
+export const StandardCertificateSchema = z.strictObject({
   certificateId: nonEmpty('the certificate number'),
   issuedBy: nonEmpty('the issuing body'),
   calibratedOn: isoDate,
@@ -103,17 +112,23 @@ export const StandardCertificateSchema = z.object({
   /** Relative expanded uncertainty of the source's frequency, from its certificate. */
   expandedUncertaintyPpm: finite('expanded uncertainty in ppm').pipe(z.number().gt(0).max(1000)),
   coverageFactor: finite('coverage factor').pipe(z.number().min(1).max(10)).default(2),
+  /** The deviation the issuing body found before adjusting, ppm, where the certificate reports one. */
+  asFoundPpm: finite('as-found deviation in ppm').pipe(z.number().min(-1e6).max(1e6)).optional(),
 });
 
-export const StandardSchema = z.object({
+export const StandardSchema = z.strictObject({
   assetId: nonEmpty('an asset id').pipe(z.string().max(40)),
   description: z.string().default(''),
+  kind: z.enum(['source', 'counter', 'other'], 'expected "source", "counter" or "other"').default('source'),
+  /** Its frequency range, where given (both or neither). */
+  min: FrequencyText.optional(),
+  max: FrequencyText.optional(),
   /** Its calibration history, any order; each check uses the one valid on the check date. */
   certificates: z.array(StandardCertificateSchema).min(1, 'expected at least one certificate'),
 });
 export type StandardInput = z.input<typeof StandardSchema>;
 
-export const PersonSchema = z.object({
+export const PersonSchema = z.strictObject({
   name: nonEmpty('a name').pipe(z.string().max(80)),
   role: z.enum(['technician', 'reviewer', 'administrator'], 'expected technician, reviewer or administrator'),
 });

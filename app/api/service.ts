@@ -22,6 +22,7 @@ import { historyOps } from './ops/history';
 import { impactOps } from './ops/impact';
 import { labOps } from './ops/lab';
 import { meterOps } from './ops/meters';
+import { meterUpkeepOps } from './ops/meter-upkeep';
 import { registerOps } from './ops/register';
 import { signingOps } from './ops/signing';
 import { standardOps } from './ops/standards';
@@ -39,6 +40,7 @@ export { CSV_COLUMNS, csvToDocuments } from './import-csv';
 const OPS = {
   ...labOps,
   ...meterOps,
+  ...meterUpkeepOps,
   ...registerOps,
   ...standardOps,
   ...checkOps,

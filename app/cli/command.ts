@@ -36,4 +36,6 @@ export interface CommandGroup {
   usage: string;
   options: NonNullable<ParseArgsConfig['options']>;
   commands: Record<string, CommandHandler>;
+  /** What `dipledger COMMAND --help` prints, per command (else the whole usage). */
+  help?: Record<string, string>;
 }

@@ -131,6 +131,9 @@ async function changeState(ctx: CommandContext, state: Meter['state']): Promise<
 
 export const recordsCommands: CommandGroup = {
   usage: `  person add NAME --role ROLE        a person who signs (technician, reviewer, administrator); asks a passphrase
+  person key NAME                    a new signing key (forgotten passphrase); old signatures stay verifiable
+  person role NAME --role ROLE [--reason TEXT]   change a person's role (audited)
+  person left NAME [--reason TEXT]   mark a person as left: keeps their signatures, signs no more
   signers                            people with signing keys
   sign CHECK --as PERSON [--meaning performed|reviewed|approved] [--passphrase-file F]
                                      sign the newest revision (asks the passphrase without echo;
@@ -158,8 +161,34 @@ export const recordsCommands: CommandGroup = {
   },
   commands: {
     async person(ctx) {
-      if (ctx.rest[0] !== 'add') throw new UsageError('usage: person add NAME --role ROLE');
+      const sub = ctx.rest[0];
       const name = ctx.rest[1];
+      if (sub === 'key') {
+        // A forgotten passphrase: a new key; signatures made with the old one still verify.
+        if (!name) throw new UsageError('person key needs NAME');
+        const lab = ctx.open();
+        const pass = await passphrase(ctx, true);
+        const s = await lab.api.rekeySigner({ name, passphrase: pass });
+        ctx.print(
+          s,
+          () => `${s.person.name} has a new signing key ${s.keyFingerprint}; older signatures still verify`,
+        );
+        return 0;
+      }
+      if (sub === 'role' || sub === 'left') {
+        if (!name) throw new UsageError(`person ${sub} needs NAME`);
+        const reason = typeof ctx.values.reason === 'string' ? ctx.values.reason : undefined;
+        const api = ctx.open().api;
+        const p =
+          sub === 'role'
+            ? await api.changeRole({ name, role: ctx.values.role as never, reason })
+            : await api.markPersonLeft({ name, reason });
+        ctx.print(p, () =>
+          p.leftOn ? `${p.name} left on ${p.leftOn}; their signatures stand` : `${p.name} is now a ${p.role}`,
+        );
+        return 0;
+      }
+      if (sub !== 'add') throw new UsageError('usage: person add|key|role|left NAME');
       if (!name) throw new UsageError('person add needs NAME');
       const role = ctx.values.role;
       const lab = ctx.open();

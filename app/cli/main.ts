@@ -22,6 +22,7 @@ import { documentCommands } from './commands-documents';
 import { dccCommands } from './commands-dcc';
 import { impactCommands } from './commands-impact';
 import { recordsCommands } from './commands-records';
+import { labCommands, meterRevisionsText } from './commands-lab';
 import { resolveBudgetSweepFile, resolveSweepFiles, sweepCommands } from './commands-sweep';
 import packageJson from '../../package.json' with { type: 'json' };
 import {
@@ -48,6 +49,7 @@ const GROUPS: CommandGroup[] = [
   sweepCommands,
   dccCommands,
   impactCommands,
+  labCommands,
 ];
 
 const CORE_OPTIONS: NonNullable<ParseArgsConfig['options']> = {
@@ -163,7 +165,8 @@ export async function runCli(argv: string[], io: CliIo): Promise<number> {
       return 0;
     }
     if (values.help && command) {
-      const help = commandHelp(command);
+      // A group's own help for a command with subcommands, else the command's usage lines.
+      const help = GROUPS.find((g) => g.help?.[command])?.help?.[command] ?? commandHelp(command);
       if (help === undefined) throw new UsageError(`unknown command "${command}"`);
       io.out(help);
       return 0;
@@ -225,6 +228,7 @@ export async function runCli(argv: string[], io: CliIo): Promise<number> {
             `stated accuracy ${m.accuracyRelPpm} ppm of reading${m.accuracyAbsHz ? ` + ${formatFrequency(m.accuracyAbsHz, 3)}` : ''}; loaded Q ${m.loadedQ}; max input ${m.maxInputPowerW} W`,
             `state ${m.state}; interval ${m.intervalMonths} months; last check ${r.lastCheckDate ?? '-'}; due ${r.dueDate ?? '-'} (${dueWords(r)})`,
             `location ${m.location || '-'}`,
+            meterRevisionsText(detail),
             '',
             table(
               ['check', 'rev', 'date', 'performer', 'as found', 'as left', 'worst'],

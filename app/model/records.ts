@@ -89,11 +89,24 @@ export interface StandardCertificate {
   dueOn: string;
   expandedUncertaintyPpm: number;
   coverageFactor: number;
+  /** The deviation found before any adjustment, relative, ppm, where the certificate reports one. */
+  asFoundPpm?: number;
 }
+
+/** What a lab standard is: a signal source, a frequency counter, or something else. */
+export type StandardKind = 'source' | 'counter' | 'other';
 
 export interface Standard {
   assetId: string;
   description: string;
+  /** Left out by older clients and fakes: then a source with no range given, in use. */
+  kind?: StandardKind;
+  /** Its frequency range, Hz, where given. */
+  minHz?: number | null;
+  maxHz?: number | null;
+  /** The day it was retired (no check after it may name it), and why; null while in use. */
+  retiredOn?: string | null;
+  retiredReason?: string | null;
   /** Newest first. */
   certificates: StandardCertificate[];
   /** The newest certificate's due date, and days to it from the service clock. */
@@ -105,6 +118,8 @@ export interface Person {
   id: number;
   name: string;
   role: 'technician' | 'reviewer' | 'administrator';
+  /** The day the person left the lab: their signatures stand, they sign no more. */
+  leftOn?: string;
 }
 
 export interface CheckPointRecord {
@@ -155,6 +170,22 @@ export interface MeterDetail {
   meter: Meter;
   register: RegisterRow;
   checks: CheckSummary[];
+  /** Revisions of the specification after the first, oldest first. */
+  revisions?: MeterRevision[];
+}
+
+/** One edit of a meter's specification: the values before and after, why, and from when they
+ * apply. Results stored before it keep the inputs they were computed with. */
+export interface MeterRevision {
+  /** 2 for the first edit (revision 1 is the meter as added). */
+  revision: number;
+  /** The day from which due dates and verdicts follow the new values. */
+  effectiveFrom: string;
+  reason: string;
+  actor: string;
+  recordedAt: string;
+  before: Meter;
+  after: Meter;
 }
 
 export interface AirResult {

@@ -7,20 +7,24 @@ interface PersonRow {
   id: number;
   name: string;
   role: Person['role'];
+  /** From 0011 (absent in a file at an older schema). */
+  left_on?: string | null;
 }
 
-const rowToPerson = (r: PersonRow): Person => ({ id: r.id, name: r.name, role: r.role });
+const rowToPerson = (r: PersonRow): Person => ({
+  id: r.id,
+  name: r.name,
+  role: r.role,
+  ...(r.left_on ? { leftOn: r.left_on } : {}),
+});
 
 export function listPeople(db: LabDb): Person[] {
-  return (db.prepare('SELECT id, name, role FROM person ORDER BY name').all() as PersonRow[]).map(
-    rowToPerson,
-  );
+  return (db.prepare('SELECT * FROM person ORDER BY name').all() as PersonRow[]).map(rowToPerson);
 }
 
 export function findPersonByName(db: LabDb, name: string): Person | undefined {
-  const row = cachedStatement(db, 'SELECT id, name, role FROM person WHERE name = ? COLLATE NOCASE').get(
-    name,
-  ) as PersonRow | undefined;
+  const row = cachedStatement(db, 'SELECT * FROM person WHERE name = ? COLLATE NOCASE').get(name) as
+    PersonRow | undefined;
   return row && rowToPerson(row);
 }
 

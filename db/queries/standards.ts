@@ -1,5 +1,5 @@
 // Lab standards (traceable sources and counters) and their certificate history.
-import type { StandardCertificate } from '../../app/model/records';
+import type { StandardCertificate, StandardKind } from '../../app/model/records';
 import type { LabDb } from '../store';
 import { cachedStatement } from '../statements';
 
@@ -7,6 +7,11 @@ export interface StandardRecord {
   id: number;
   assetId: string;
   description: string;
+  kind: StandardKind;
+  minHz: number | null;
+  maxHz: number | null;
+  retiredOn: string | null;
+  retiredReason: string | null;
   /** Newest first, each with its row id. */
   certificates: (StandardCertificate & { id: number })[];
 }
@@ -15,6 +20,12 @@ interface StandardRow {
   id: number;
   asset_id: string;
   description: string;
+  // From 0011 (absent in a file at an older schema).
+  kind?: StandardKind;
+  min_hz?: number | null;
+  max_hz?: number | null;
+  retired_on?: string | null;
+  retired_reason?: string | null;
 }
 
 interface CertificateRow {
@@ -26,6 +37,7 @@ interface CertificateRow {
   due_on: string;
   expanded_ppm: number;
   coverage_k: number;
+  as_found_ppm?: number | null;
 }
 
 const rowToCertificate = (r: CertificateRow): StandardCertificate & { id: number } => ({
@@ -36,6 +48,7 @@ const rowToCertificate = (r: CertificateRow): StandardCertificate & { id: number
   dueOn: r.due_on,
   expandedUncertaintyPpm: r.expanded_ppm,
   coverageFactor: r.coverage_k,
+  ...(r.as_found_ppm === null || r.as_found_ppm === undefined ? {} : { asFoundPpm: r.as_found_ppm }),
 });
 
 function certificatesOf(db: LabDb, standardId: number): (StandardCertificate & { id: number })[] {
@@ -48,24 +61,28 @@ function certificatesOf(db: LabDb, standardId: number): (StandardCertificate & {
 }
 
 export function listStandards(db: LabDb): StandardRecord[] {
-  const rows = db
-    .prepare('SELECT id, asset_id, description FROM standard ORDER BY asset_id')
-    .all() as StandardRow[];
-  return rows.map((r) => ({
+  const rows = db.prepare('SELECT * FROM standard ORDER BY asset_id').all() as StandardRow[];
+  return rows.map((r) => rowToStandard(db, r));
+}
+
+function rowToStandard(db: LabDb, r: StandardRow): StandardRecord {
+  return {
     id: r.id,
     assetId: r.asset_id,
     description: r.description,
+    kind: r.kind ?? 'source',
+    minHz: r.min_hz ?? null,
+    maxHz: r.max_hz ?? null,
+    retiredOn: r.retired_on ?? null,
+    retiredReason: r.retired_reason ?? null,
     certificates: certificatesOf(db, r.id),
-  }));
+  };
 }
 
 export function getStandardByAsset(db: LabDb, assetId: string): StandardRecord | undefined {
-  const r = cachedStatement(db, 'SELECT id, asset_id, description FROM standard WHERE asset_id = ?').get(
-    assetId,
-  ) as StandardRow | undefined;
-  return (
-    r && { id: r.id, assetId: r.asset_id, description: r.description, certificates: certificatesOf(db, r.id) }
-  );
+  const r = cachedStatement(db, 'SELECT * FROM standard WHERE asset_id = ?').get(assetId) as
+    StandardRow | undefined;
+  return r && rowToStandard(db, r);
 }
 
 export function insertStandard(

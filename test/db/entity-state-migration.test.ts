@@ -1,4 +1,4 @@
-// Migration 0012_entity_state on a lab file written before audit entries carried entity digests:
+// Migration 0013_entity_state on a lab file written before audit entries carried entity digests:
 // the entries already written keep their bytes and hashes, every entity present gets one audited
 // "baseline" entry committing to its content as found, the file then passes `integrity`, and an
 // edit made afterwards outside the program is named (the purpose of the digests).
@@ -10,9 +10,9 @@ import { clock, goodCheck, seed } from '../fixtures/lab';
 
 const ADA = { name: 'Ada Fenwick', passphrase: 'ada-passphrase-1' };
 
-describe('migration 0012_entity_state', () => {
-  it('baselines every entity of a schema-11 file once, keeps the older entries, and passes integrity', async () => {
-    const db = openLabDb(':memory:', { targetVersion: 11 });
+describe('migration 0013_entity_state', () => {
+  it('baselines every entity of a schema-12 file once, keeps the older entries, and passes integrity', async () => {
+    const db = openLabDb(':memory:', { targetVersion: 12 });
     const api = createLabService(db, { clock });
     await seed(api);
     await api.enrolSigner(ADA);
@@ -21,8 +21,8 @@ describe('migration 0012_entity_state', () => {
     const before = db.prepare('SELECT * FROM audit_entry ORDER BY id').all();
     expect(before.length).toBeGreaterThan(5);
 
-    migrate(db, 12);
-    expect(schemaVersion(db)).toBe(12);
+    migrate(db, 13);
+    expect(schemaVersion(db)).toBe(13);
     const after = db.prepare('SELECT * FROM audit_entry ORDER BY id').all() as Record<string, unknown>[];
     // The older entries are the same rows, with no digest.
     expect(after.slice(0, before.length)).toEqual(

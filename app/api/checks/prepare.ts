@@ -110,6 +110,15 @@ export function prepareCheck(
       );
       return;
     }
+    if (s.retiredOn && doc.date > s.retiredOn) {
+      issues.add(
+        field,
+        assetId,
+        'a lab standard in use on the check date',
+        `${field}: ${assetId} was retired on ${s.retiredOn}, before ${doc.date}`,
+      );
+      return;
+    }
     const cert = certificateOn(s, doc.date);
     // A permissive lab records the check against the certificate nearest before the date,
     // with an exception shown on the record; a strict lab refuses it.

@@ -126,6 +126,11 @@ function toStandard(ctx: ServiceContext, s: StandardRecord): Standard {
   return {
     assetId: s.assetId,
     description: s.description,
+    kind: s.kind,
+    minHz: s.minHz,
+    maxHz: s.maxHz,
+    retiredOn: s.retiredOn,
+    retiredReason: s.retiredReason,
     certificates: s.certificates.map(({ id: _id, ...c }) => c),
     dueOn,
     daysToDue: days,

@@ -44,6 +44,11 @@ export function toStandard(ctx: ServiceContext, s: StandardRecord): Standard {
   return {
     assetId: s.assetId,
     description: s.description,
+    kind: s.kind,
+    minHz: s.minHz,
+    maxHz: s.maxHz,
+    retiredOn: s.retiredOn,
+    retiredReason: s.retiredReason,
     certificates: s.certificates.map(({ id: _id, ...c }) => c),
     dueOn,
     daysToDue: dueOn ? daysBetween(ctx.clock.today(), dueOn) : 0,

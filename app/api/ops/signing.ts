@@ -70,6 +70,7 @@ const EnrolSchema = z.object({
     .optional(),
   passphrase: z.unknown(),
 });
+const RekeySchema = z.object({ name: nonEmpty('a name', 80), passphrase: z.unknown() });
 const SignSchema = z.object({
   checkId: CheckIdSchema,
   person: nonEmpty("the signer's name", 80),
@@ -307,6 +308,57 @@ export function enrolSigner(ctx: ServiceContext, input: Parameters<RecordsApi['e
   return signerOf(ctx, person as Person);
 }
 
+/** A new key for someone who already signs (a forgotten passphrase): a new row, the old key kept
+ * so the signatures made with it still verify. */
+export function rekeySigner(ctx: ServiceContext, input: unknown) {
+  const e = parseWith(RekeySchema, input);
+  const passphrase = passphraseOf((input as { passphrase?: unknown } | null)?.passphrase, true);
+  const person = findPersonByName(ctx.db, e.name);
+  if (!person)
+    throw LabError.field(
+      'name',
+      e.name,
+      "one of the lab's people",
+      `name: ${describe(e.name)} is not one of the lab's people`,
+    );
+  if (person.leftOn)
+    throw LabError.field(
+      'name',
+      e.name,
+      'someone still in the lab',
+      `name: ${person.name} left the lab on ${person.leftOn}`,
+    );
+  const old = currentKeyOf(ctx.db, person.id);
+  if (!old)
+    throw LabError.field(
+      'name',
+      e.name,
+      'a person with a signing key',
+      `name: ${person.name} has no signing key yet ("dipledger person add")`,
+    );
+  const sealed = generateSealedKey(passphrase);
+  ctx.db.transaction(() => {
+    const at = ctx.clock.now();
+    const keyId = insertPersonKey(ctx.db, person.id, sealed, at);
+    appendAudit(ctx.db, {
+      at,
+      actor: ctx.actor,
+      action: 'create',
+      entity: 'person-key',
+      entityId: String(keyId),
+      before: undefined,
+      after: {
+        person: person.name,
+        personId: person.id,
+        fingerprint: sealed.fingerprint,
+        publicKeyPem: sealed.publicKeyPem,
+        replaces: old.sealed.fingerprint,
+      },
+    });
+  })();
+  return signerOf(ctx, person);
+}
+
 export function listSigners(ctx: ServiceContext) {
   return listSignerRows(ctx.db);
 }
@@ -324,6 +376,13 @@ export function signCheck(ctx: ServiceContext, input: Parameters<RecordsApi['sig
         message: `person: ${describe(s.person)} is not one of the lab's people`,
       },
     ]);
+  if (person.leftOn)
+    throw LabError.field(
+      'person',
+      person.name,
+      'someone still in the lab',
+      `person: ${person.name} left the lab on ${person.leftOn} and cannot sign again`,
+    );
   const key = currentKeyOf(ctx.db, person.id);
   if (!key)
     throw LabError.field(
@@ -483,6 +542,9 @@ export const signingOps = {
   enrolSigner,
   listSigners,
   signCheck,
+  rekeySigner,
   amendCheck,
   getCheckRevision,
-} satisfies OpGroup<'enrolSigner' | 'listSigners' | 'signCheck' | 'amendCheck' | 'getCheckRevision'>;
+} satisfies OpGroup<
+  'enrolSigner' | 'listSigners' | 'signCheck' | 'rekeySigner' | 'amendCheck' | 'getCheckRevision'
+>;

@@ -19,6 +19,8 @@ import {
 } from './registerFilters';
 import type { RegisterFilters, Sort, SortKey } from './registerFilters';
 import { useRegister } from './useRegister';
+import { AddMeterForm } from '../setup/AddMeterForm';
+import { FirstRunGuide } from '../setup/FirstRunGuide';
 import './register.css';
 
 export { filterRows } from './registerFilters';
@@ -27,6 +29,7 @@ export function RegisterPage() {
   const { load, rows, flagLoad, coverageLoad } = useRegister();
   const [filters, setFilters] = useState<RegisterFilters>(NO_FILTERS);
   const [sort, setSort] = useState<Sort>(DEFAULT_SORT);
+  const [adding, setAdding] = useState(false);
   // Typing stays quick with thousands of rows: the table follows a keystroke behind if it must.
   const deferredFilters = useDeferredValue(filters);
 
@@ -64,6 +67,22 @@ export function RegisterPage() {
           <p className="status error" role="alert">
             The register could not be loaded: {load.message}
           </p>
+        )}
+        {load.kind === 'ready' && rows.length === 0 && <FirstRunGuide onAddMeter={() => setAdding(true)} />}
+        {load.kind === 'ready' && (
+          <p>
+            <button type="button" aria-expanded={adding} onClick={() => setAdding(!adding)}>
+              Add a meter
+            </button>
+          </p>
+        )}
+        {adding && (
+          <AddMeterForm
+            onAdded={(assetId) => {
+              setAdding(false);
+              window.location.hash = `#/meter/${encodeURIComponent(assetId)}`;
+            }}
+          />
         )}
         {load.kind === 'ready' && (
           <>
