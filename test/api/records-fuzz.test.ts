@@ -34,7 +34,11 @@ beforeAll(async () => {
     db.prepare("SELECT name FROM sqlite_master WHERE type = 'table' ORDER BY name").all() as {
       name: string;
     }[]
-  ).map((t) => t.name);
+  )
+    .map((t) => t.name)
+    // meter_summary is the register's cache of derived per-meter summaries, filled by whichever
+    // read first needs a meter's summary; integrity compares it with the records.
+    .filter((t) => t !== 'meter_summary');
   // Row counts of every table, plus the rows an update may change in place.
   const counts = tables.map((t) => db.prepare(`SELECT count(*) AS n FROM "${t}"`).pluck());
   const inPlace = [

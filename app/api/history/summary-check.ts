@@ -9,6 +9,18 @@ import { registerFlagsAll } from './flags';
 import { cachedAttributeRecords, forgetSummaries, setSummariesEnabled } from './summaries';
 
 export function summaryProblems(ctx: ServiceContext): IntegrityProblem[] {
+  // A check reads: summaries the comparison fills in on the way are rolled back, never kept.
+  ctx.db.exec('SAVEPOINT summary_check');
+  try {
+    return compareSummaries(ctx);
+  } finally {
+    ctx.db.exec('ROLLBACK TO summary_check');
+    ctx.db.exec('RELEASE summary_check');
+    forgetSummaries(ctx.db);
+  }
+}
+
+function compareSummaries(ctx: ServiceContext): IntegrityProblem[] {
   const { db } = ctx;
   const rows = registerRows(db).map((r) => registerRowOf(ctx, r));
   const attributes = (assetId: string) =>
