@@ -166,7 +166,8 @@ export async function runCli(argv: string[], io: CliIo): Promise<number> {
     }
     if (values.help && command) {
       // A group's own help for a command with subcommands, else the command's usage lines.
-      const help = GROUPS.find((g) => g.help?.[command])?.help?.[command] ?? commandHelp(command);
+      const own = GROUPS.find((g) => g.help?.[command])?.help?.[command];
+      const help = own === undefined ? commandHelp(command) : `${own.trimEnd()}\n\n${GLOBAL_OPTIONS_HELP}`;
       if (help === undefined) throw new UsageError(`unknown command "${command}"`);
       io.out(help);
       return 0;

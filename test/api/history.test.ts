@@ -210,7 +210,7 @@ describe('the command line', () => {
     expect(a.stderr.join('\n')).toMatch(/no meter with asset id "XX-9"/);
     const b = io();
     expect(await runCli(['--db', file, 'use', 'WG-201', '--at', '9.3'], b)).toBe(2);
-    expect(b.stderr.join('\n')).toMatch(/frequency: "9.3"/);
+    expect(b.stderr.join('\n')).toMatch(/frequency: "9.3"/i);
     const c = io();
     expect(await runCli(['--db', file, 'use', '--at', '120GHz'], c)).toBe(2);
     expect(c.stderr.join('\n')).toMatch(/outside every meter's band/);

@@ -56,13 +56,13 @@ describe('dipledger impact STANDARD', () => {
     const file = await labWithCheck();
     const before = readFileSync(file);
     const cases: [string[], RegExp][] = [
-      [['impact', 'NOPE', '--error', '1 ppm'], /standard/],
-      [['impact', 'SRC-A', '--error', '0.3'], /error: "0.3" has no unit/],
+      [['impact', 'NOPE', '--error', '1 ppm'], /standard/i],
+      [['impact', 'SRC-A', '--error', '0.3'], /error: "0.3" has no unit/i],
       [
         ['impact', 'SRC-A', '--error', '1 ppm', '--since', '2030-01-01'],
-        /since: 2030-01-01 is in the future/,
+        /since: 2030-01-01 is in the future/i,
       ],
-      [['impact', 'NOPE'], /meter/],
+      [['impact', 'NOPE'], /meter/i],
     ];
     for (const [args, message] of cases) {
       const o = io();

@@ -60,7 +60,7 @@ describe('dipledger sign / person add / check', () => {
     expect((await integrity(file)).code).toBe(0);
   });
 
-  it('a wrong passphrase exits 2, says so, and leaves the file unchanged', async () => {
+  it('a wrong passphrase exits 2, says so, and records only the refused attempt', async () => {
     const dir = mkdtempSync(path.join(tmpdir(), 'dipledger-cli-records-'));
     const file = path.join(dir, 'lab.dipledger');
     const lab = await seededLab(file);
@@ -74,7 +74,23 @@ describe('dipledger sign / person add / check', () => {
       /passphrase does not open Ada Fenwick's signing key: nothing was signed/,
     );
     expect(o.stderr.join('\n')).not.toContain('wrong-passphrase');
-    expect(readFileSync(file).equals(before)).toBe(true);
+    // Nothing is signed; the refused attempt is the one thing written (the audit trail notices
+    // failed signing attempts), and it never carries the passphrase.
+    expect(readFileSync(file).equals(before)).toBe(false);
+    const db = new Database(file, { readonly: true });
+    const entries = db
+      .prepare('SELECT action, after_json FROM audit_entry ORDER BY id DESC LIMIT 2')
+      .all() as {
+      action: string;
+      after_json: string | null;
+    }[];
+    const signatures = db.prepare('SELECT count(*) FROM check_signature').pluck().get();
+    db.close();
+    expect(entries[0]?.action).toBe('sign-refused');
+    expect(entries[1]?.action).not.toBe('sign-refused');
+    expect(JSON.stringify(entries)).not.toContain('wrong-passphrase');
+    expect(signatures).toBe(0);
+    expect((await integrity(file)).code).toBe(0);
   });
 
   it('refuses to ask for a passphrase without a terminal', async () => {

@@ -481,7 +481,9 @@ describe('the CLI', () => {
     expect(await runCli(['--db', demo.file, 'dcc', String(demo.draftCheckId), '--out', 'none.xml'], a)).toBe(
       2,
     );
-    expect(a.stderr.join('\n')).toMatch(new RegExp(`checkId: check ${demo.draftCheckId} has no certificate`));
+    expect(a.stderr.join('\n')).toMatch(
+      new RegExp(`check: check ${demo.draftCheckId} has no certificate`, 'i'),
+    );
     expect(existsSync(path.join(demo.dir, 'none.xml'))).toBe(false);
 
     const b = io(demo.dir);
