@@ -87,6 +87,33 @@ export function listMeterRecords(db: LabDb): MeterRecord[] {
   }));
 }
 
+/** A meter's specification columns (everything a spec revision may change), named as the
+ * statements bind them; shared by the insert and the spec update so the two never diverge. */
+export function meterSpecToRow(m: Meter) {
+  return {
+    description: m.description,
+    construction: m.construction,
+    port: m.port,
+    min_hz: m.minHz,
+    max_hz: m.maxHz,
+    dial_kind: m.dialKind,
+    accuracy_rel_ppm: m.accuracyRelPpm,
+    accuracy_abs_hz: m.accuracyAbsHz,
+    resolution: m.resolution,
+    alpha_per_k: m.alphaPerK,
+    u_alpha_per_k: m.alphaUncertaintyPerK,
+    ref_temperature_c: m.reference.temperatureC,
+    ref_pressure_hpa: m.reference.pressureHpa,
+    ref_humidity_pct: m.reference.humidityPct,
+    loaded_q: m.loadedQ,
+    setting_fraction: m.settingFraction,
+    min_dip_db: m.minDipDb,
+    max_input_power_w: m.maxInputPowerW,
+    location: m.location,
+    interval_months: m.intervalMonths,
+  };
+}
+
 export function insertMeter(db: LabDb, m: Meter, createdAt: string): number {
   const info = db
     .prepare(
@@ -98,31 +125,7 @@ export function insertMeter(db: LabDb, m: Meter, createdAt: string): number {
          @ref_humidity_pct, @loaded_q, @setting_fraction, @min_dip_db, @max_input_power_w, @location, @state,
          @interval_months, @created_at)`,
     )
-    .run({
-      asset_id: m.assetId,
-      description: m.description,
-      construction: m.construction,
-      port: m.port,
-      min_hz: m.minHz,
-      max_hz: m.maxHz,
-      dial_kind: m.dialKind,
-      accuracy_rel_ppm: m.accuracyRelPpm,
-      accuracy_abs_hz: m.accuracyAbsHz,
-      resolution: m.resolution,
-      alpha_per_k: m.alphaPerK,
-      u_alpha_per_k: m.alphaUncertaintyPerK,
-      ref_temperature_c: m.reference.temperatureC,
-      ref_pressure_hpa: m.reference.pressureHpa,
-      ref_humidity_pct: m.reference.humidityPct,
-      loaded_q: m.loadedQ,
-      setting_fraction: m.settingFraction,
-      min_dip_db: m.minDipDb,
-      max_input_power_w: m.maxInputPowerW,
-      location: m.location,
-      state: m.state,
-      interval_months: m.intervalMonths,
-      created_at: createdAt,
-    });
+    .run({ ...meterSpecToRow(m), asset_id: m.assetId, state: m.state, created_at: createdAt });
   const id = Number(info.lastInsertRowid);
   const chart = db.prepare(
     'INSERT INTO meter_chart_point (meter_id, divisions, frequency_hz) VALUES (?, ?, ?)',

@@ -5,6 +5,7 @@
 import type { Meter, MeterRevision, StandardCertificate } from '../../app/model/records';
 import type { LabDb } from '../store';
 import { cachedStatement } from '../statements';
+import { meterSpecToRow } from './meters';
 
 interface MeterRevisionRow {
   revision: number;
@@ -29,29 +30,7 @@ export function updateMeterSpec(db: LabDb, meterId: number, m: Meter): void {
          location = @location, interval_months = @interval_months
        WHERE id = @id`,
     )
-    .run({
-      id: meterId,
-      description: m.description,
-      construction: m.construction,
-      port: m.port,
-      min_hz: m.minHz,
-      max_hz: m.maxHz,
-      dial_kind: m.dialKind,
-      accuracy_rel_ppm: m.accuracyRelPpm,
-      accuracy_abs_hz: m.accuracyAbsHz,
-      resolution: m.resolution,
-      alpha_per_k: m.alphaPerK,
-      u_alpha_per_k: m.alphaUncertaintyPerK,
-      ref_temperature_c: m.reference.temperatureC,
-      ref_pressure_hpa: m.reference.pressureHpa,
-      ref_humidity_pct: m.reference.humidityPct,
-      loaded_q: m.loadedQ,
-      setting_fraction: m.settingFraction,
-      min_dip_db: m.minDipDb,
-      max_input_power_w: m.maxInputPowerW,
-      location: m.location,
-      interval_months: m.intervalMonths,
-    });
+    .run({ ...meterSpecToRow(m), id: meterId });
   if (info.changes !== 1) throw new Error(`meter ${meterId}: expected 1 row changed, got ${info.changes}`);
   db.prepare('DELETE FROM meter_chart_point WHERE meter_id = ?').run(meterId);
   db.prepare('DELETE FROM meter_plan_point WHERE meter_id = ?').run(meterId);
